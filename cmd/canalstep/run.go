@@ -1,0 +1,102 @@
+package main
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"strings"
+
+	flag "github.com/spf13/pflag"
+)
+
+// command is one subcommand of canalstep.
+type command struct {
+	name    string
+	summary string
+	run     func(ctx context.Context, args []string, stdout, stderr io.Writer) error
+}
+
+// commands lists the subcommands in the order the help text shows them.
+func commands() []command {
+	return []command{
+		// Each subcommand adds one line here.
+	}
+}
+
+// run parses the subcommand and runs it. It never calls os.Exit and writes only
+// to the writers it is given, so tests call it in-process.
+func run(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+	if len(args) == 0 || args[0] == "-h" || args[0] == "--help" || args[0] == "help" {
+		usage(stdout)
+		return nil
+	}
+	for _, c := range commands() {
+		if c.name == args[0] {
+			return c.run(ctx, args[1:], stdout, stderr)
+		}
+	}
+	return usagef("unknown command %q; run 'canalstep help' for the list", args[0])
+}
+
+func usage(w io.Writer) {
+	fmt.Fprintln(w, "canalstep: canal long sections with drop structures, from a DEM and GeoJSON alignments")
+	fmt.Fprintln(w, "\nUsage: canalstep <command> [flags]\n\nCommands:")
+	for _, c := range commands() {
+		fmt.Fprintf(w, "  %-9s %s\n", c.name, c.summary)
+	}
+	fmt.Fprintln(w, "\nRun 'canalstep <command> --help' for the flags of one command.")
+}
+
+// usageError marks a mistake in the command line: exit status 2.
+type usageError struct{ err error }
+
+func (e usageError) Error() string { return e.err.Error() }
+func (e usageError) Unwrap() error { return e.err }
+
+// usagef returns a usageError with a formatted message.
+func usagef(format string, a ...any) error {
+	return usageError{fmt.Errorf(format, a...)}
+}
+
+// newFlagSet returns a pflag set for one subcommand that reports errors
+// instead of exiting and prints its help to stdout.
+func newFlagSet(name string, stdout io.Writer) *flag.FlagSet {
+	fs := flag.NewFlagSet(name, flag.ContinueOnError)
+	fs.SetOutput(stdout)
+	fs.SortFlags = false
+	return fs
+}
+
+// parseFlags parses args into fs. Help is not an error; other parse problems
+// become usage errors. It reports whether the command should go on.
+func parseFlags(fs *flag.FlagSet, args []string) (bool, error) {
+	if err := fs.Parse(args); err != nil {
+		if errors.Is(err, flag.ErrHelp) {
+			return false, nil
+		}
+		return false, usagef("%s: %v (see 'canalstep %s --help')", fs.Name(), err, fs.Name())
+	}
+	if fs.NArg() > 0 {
+		return false, usagef("%s: unexpected argument %q (see 'canalstep %s --help')", fs.Name(), fs.Arg(0), fs.Name())
+	}
+	return true, nil
+}
+
+// exitCode maps an error to the process exit status: 0 success, 2 usage
+// error, 1 anything else (failed run or infeasible design).
+func exitCode(err error) int {
+	if err == nil {
+		return 0
+	}
+	var u usageError
+	if errors.As(err, &u) {
+		return 2
+	}
+	return 1
+}
+
+// oneLine folds an error message onto a single line.
+func oneLine(err error) string {
+	return strings.Join(strings.Fields(err.Error()), " ")
+}
