@@ -1,0 +1,17 @@
+// Package alignment reads canal alignments from GeoJSON and stations them:
+// it places stations along the route at a fixed spacing, at every vertex and
+// at the end, and labels them in trade notation.
+//
+// Chainage is measured in metres along the alignment in a projected work
+// CRS (the DEM's CRS, or a local UTM zone when the DEM is geographic). The
+// package itself knows no CRS maths: coordinate transforms come in through
+// the [Transformer] interface, which the command layer fills with GDAL/PROJ.
+// Everything here is pure Go and safe to use from many goroutines, since no
+// function keeps state between calls.
+//
+// The entry points are [Read] (GeoJSON to [Alignment]s), [Stations] (an
+// alignment and its [Frames] to [Station]s), [StationLine] (the same for a
+// line already in the work CRS), [FormatStation] and [ParseStation]
+// (labels such as 1+250.00 or, in US customary units, 12+50.00), and
+// [Ranges] (station indices to readable chainage ranges for messages).
+package alignment
