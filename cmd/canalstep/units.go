@@ -1,0 +1,29 @@
+package main
+
+import (
+	"strings"
+
+	"canalstep/report"
+)
+
+// Unit handling at the command line's edge: values inside canalstep are SI;
+// --units us reads and prints feet and cubic feet per second.
+
+// unitLength is the length of one input length unit in metres.
+func unitLength(u report.Units) float64 {
+	if u == report.US {
+		return report.FootM
+	}
+	return 1
+}
+
+// parseUnits reads the --units flag.
+func parseUnits(s string) (report.Units, error) {
+	switch strings.ToLower(s) {
+	case "si", "metric", "m":
+		return report.SI, nil
+	case "us", "ft":
+		return report.US, nil
+	}
+	return report.SI, usagef("--units must be si or us, got %q", s)
+}
