@@ -165,7 +165,8 @@ func notJSON(data []byte) error {
 	err := json.Unmarshal(data, &v)
 	var se *json.SyntaxError
 	if errors.As(err, &se) {
-		off := int(min(max(se.Offset, 0), int64(len(data))))
+		// Offset counts the bytes read, including the offending one.
+		off := int(min(max(se.Offset-1, 0), int64(len(data))))
 		line := 1 + bytes.Count(data[:off], []byte("\n"))
 		col := off - bytes.LastIndexByte(data[:off], '\n')
 		return fmt.Errorf("%w: line %d, column %d: %v", ErrNotJSON, line, col, se)

@@ -33,7 +33,7 @@ func FormatStation(chainageM float64, us bool) string {
 		v, station, width = chainageM/FootM, 100, 2
 	}
 	if math.IsNaN(v) || math.IsInf(v, 0) || math.Abs(v) >= maxLabelUnits {
-		return strconv.FormatFloat(chainageM, 'g', -1, 64)
+		return strconv.FormatFloat(chainageM, 'f', -1, 64)
 	}
 	c := int64(math.Round(math.Abs(v) * 100)) // hundredths of the unit
 	sign := ""

@@ -22,8 +22,9 @@ const fallbackName = "alignment"
 // _ are collapsed, leading dots, dashes and underscores and trailing dots and
 // underscores are trimmed, and a name Windows reserves (CON, NUL, COM1, ...)
 // gets a trailing _. The result is never empty, never "." or "..", and at
-// most 64 bytes: a longer name is cut and ends in ~ and 8 hex digits of a
-// hash of the whole name, so distinct long names stay distinct. Deterministic.
+// most 64 bytes: a longer name is cut and ends in - and 8 hex digits of a
+// hash (FNV-1a) of the whole name, so distinct long names stay distinct.
+// Deterministic and idempotent: SafeName(SafeName(s)) == SafeName(s).
 func SafeName(name string) string {
 	var b strings.Builder
 	under := false
@@ -50,7 +51,7 @@ func SafeName(name string) string {
 	if len(s) > maxSafeName {
 		h := fnv.New32a()
 		h.Write([]byte(name))
-		suffix := fmt.Sprintf("~%08x", h.Sum32())
+		suffix := fmt.Sprintf("-%08x", h.Sum32())
 		cut := maxSafeName - len(suffix)
 		for cut > 0 && !utf8.RuneStart(s[cut]) {
 			cut--
