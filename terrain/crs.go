@@ -48,7 +48,7 @@ func shorten(s string) string {
 
 // CRSInfo parses a CRS definition (as accepted by [NewTransform]) and
 // describes it, so a caller can decide whether to measure chainage in that
-// CRS or in a local projected one (see [UTMZoneEPSG]).
+// CRS or in a local projected one (a UTM zone: EPSG 32600+zone / 32700+zone).
 func CRSInfo(def string) (CRS, error) {
 	sr, err := newSpatialRef(def)
 	if err != nil {
@@ -95,25 +95,6 @@ func epsgOf(sr *godal.SpatialRef, wkt string) int {
 	}
 	n, _ := strconv.Atoi(cp.AuthorityCode(""))
 	return n
-}
-
-// UTMZoneEPSG returns the EPSG code of the WGS 84 UTM zone containing the
-// point (lon, lat in degrees): 32600+zone north of the equator, 32700+zone
-// south. It uses the regular 6° zones (not the Norway/Svalbard exceptions)
-// and returns 0 for latitudes beyond ±84°, where UTM is not defined.
-func UTMZoneEPSG(lon, lat float64) int {
-	if !(lat >= -80 && lat <= 84) || math.IsNaN(lon) || math.IsInf(lon, 0) {
-		return 0
-	}
-	lon = math.Mod(lon+180, 360)
-	if lon < 0 {
-		lon += 360
-	}
-	zone := min(int(lon/6)+1, 60)
-	if lat < 0 {
-		return 32700 + zone
-	}
-	return 32600 + zone
 }
 
 // Transform converts coordinates between two CRSs through PROJ, in

@@ -84,13 +84,14 @@ func WriteGeoTIFF(path string, g Grid, opts ...WriteOption) (err error) {
 	target := path
 	if !strings.HasPrefix(path, "/vsi") {
 		dir := filepath.Dir(path)
-		f, err := os.CreateTemp(dir, "."+filepath.Base(path)+".tmp-*")
-		if err != nil {
-			return fmt.Errorf("write %s: %w", path, err)
+		f, ferr := os.CreateTemp(dir, "."+filepath.Base(path)+".tmp-*")
+		if ferr != nil {
+			return fmt.Errorf("write %s: %w", path, ferr)
 		}
 		target = f.Name()
 		f.Close()
-		defer func() {
+		defer func() { // err is the named result
+
 			if err != nil {
 				os.Remove(target)
 			}
