@@ -21,6 +21,7 @@ type command struct {
 func commands() []command {
 	return []command{
 		// Each subcommand adds one line here.
+		{"profile", "ground long section along each alignment (ground.csv, ground.png)", runProfile},
 	}
 }
 
