@@ -66,6 +66,10 @@ type Frames struct {
 // million stations (500 km at 0.1 m) take about 360 MB.
 const MaxStations = 5_000_000
 
+// MaxStart bounds the start chainage (m): a million kilometres, beyond any
+// real alignment, keeping chainage resolution finer than 1e-6 m.
+const MaxStart = 1e9
+
 // absorbTolerance is how close (m of chainage) a spacing station may come
 // to a vertex before the vertex takes its place, so no two stakes are set
 // within 1 mm of each other (common practice, no source).
@@ -76,8 +80,9 @@ var (
 	// ErrSpacing is returned for a spacing that is not a positive, finite
 	// number of metres.
 	ErrSpacing = errors.New("station spacing must be a positive number of metres")
-	// ErrStart is returned for a start chainage that is not finite.
-	ErrStart = errors.New("start chainage must be a finite number of metres")
+	// ErrStart is returned for a start chainage that is not finite or
+	// beyond ±MaxStart.
+	ErrStart = errors.New("start chainage must be a finite number of metres within ±1e9")
 	// ErrUnit is returned for a WorkUnitToMetre that is negative or not finite.
 	ErrUnit = errors.New("work CRS unit must be a positive, finite length in metres")
 	// ErrGeometry is returned for a line with non-finite coordinates or
@@ -117,10 +122,11 @@ func segLen(a, b orb.Point, u float64) float64 {
 //     strictly inside the line, except that a vertex within 1 mm takes its
 //     place.
 //
-// spacing is in metres. Chainage is strictly increasing: where two points
-// would round to the same float64 chainage (only possible with vertices
-// closer than about 1e-16 of the chainage) the later one is dropped, except
-// the last vertex, which always ends the list. Repeated consecutive
+// spacing is in metres; start must lie within ±MaxStart. Chainage is
+// strictly increasing: where two points would round to the same float64
+// chainage (only possible with vertices closer than about 1e-16 of the
+// chainage) the later one is dropped, except the last vertex, which always
+// ends the list. Repeated consecutive
 // vertices are ignored. X, Y and WorkX, WorkY are set to the station's
 // coordinates in the work CRS.
 func StationLine(line orb.LineString, unitToMetre, spacing, start float64) ([]Station, error) {
@@ -133,7 +139,7 @@ func StationLine(line orb.LineString, unitToMetre, spacing, start float64) ([]St
 	if !(spacing > 0) || math.IsInf(spacing, 0) {
 		return nil, fmt.Errorf("%w (got %v)", ErrSpacing, spacing)
 	}
-	if math.IsNaN(start) || math.IsInf(start, 0) {
+	if !(math.Abs(start) <= MaxStart) {
 		return nil, fmt.Errorf("%w (got %v)", ErrStart, start)
 	}
 	pts := make(orb.LineString, 0, len(line))
@@ -209,6 +215,9 @@ func StationLine(line orb.LineString, unitToMetre, spacing, start float64) ([]St
 	}
 	for ; seg < len(pts); seg++ {
 		emit(vertex(seg), seg == len(pts)-1)
+	}
+	if len(out) < 2 {
+		return nil, fmt.Errorf("%w: its length %g m is below the chainage resolution at %g m", ErrGeometry, length, start)
 	}
 	return out, nil
 }

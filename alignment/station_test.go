@@ -145,6 +145,8 @@ func TestStationLineErrors(t *testing.T) {
 		{"spacing +Inf", lShape, 1, math.Inf(1), 0, ErrSpacing},
 		{"start NaN", lShape, 1, 10, math.NaN(), ErrStart},
 		{"start -Inf", lShape, 1, 10, math.Inf(-1), ErrStart},
+		{"start beyond 1e9 m", lShape, 1, 10, 1.5e9, ErrStart},
+		{"too short for its chainage", orb.LineString{{0, 0}, {1e-8, 0}}, 1, 10, 1e9, ErrGeometry},
 		{"unit negative", lShape, -1, 10, 0, ErrUnit},
 		{"unit NaN", lShape, math.NaN(), 10, 0, ErrUnit},
 		{"unit +Inf", lShape, math.Inf(1), 10, 0, ErrUnit},

@@ -1,0 +1,166 @@
+package alignment
+
+import (
+	"errors"
+	"math"
+	"strings"
+	"testing"
+
+	"github.com/paulmach/orb"
+)
+
+// FuzzRead: Read never panics; every error wraps one of its sentinels and
+// is one line; every accepted alignment has at least two points, no
+// repeated consecutive vertex, a name, and a folder name of its own.
+func FuzzRead(f *testing.F) {
+	for _, s := range []string{
+		`{"type":"LineString","coordinates":[[15,36],[15.1,36.1]]}`,
+		`{"type":"Feature","properties":{"name":"A"},"geometry":{"type":"LineString","coordinates":[[0,0,1],[1,1,2]]}}`,
+		`{"type":"FeatureCollection","crs":{"type":"name","properties":{"name":"urn:ogc:def:crs:EPSG::32633"}},"features":[{"type":"Feature","properties":{"name":"A"},"geometry":{"type":"MultiLineString","coordinates":[[[0,0],[1,0]],[[1,0],[1,1]]]}},{"type":"Feature","properties":{"name":"a"},"geometry":{"type":"LineString","coordinates":[[0,0],[0,0],[2,2]]}}]}`,
+		`{"type":"MultiLineString","coordinates":[[[0,0],[1,0]],[[2,0],[3,0]]]}`,
+		`{"type":"Point","coordinates":[1,2]}`,
+		`{"type":"LineString","coordinates":[[1],[2,3]]}`,
+		`{"type":"LineString","coordinates":[[1,1],[1,1]]}`,
+		`{"type":"FeatureCollection","features":[null,{"geometry":null},{"type":"Feature","geometry":{"type":"LineString","coordinates":[[1e308,0],[-1e308,0]]}}]}`,
+		`{"type":`, `[]`, `null`, `"x"`, ``, "\xff",
+	} {
+		f.Add([]byte(s))
+	}
+	sentinels := []error{ErrNotJSON, ErrNotGeoJSON, ErrNoLine, ErrTooFewPoints, ErrDisjoint}
+	f.Fuzz(func(t *testing.T, data []byte) {
+		as, err := Read(data)
+		if err != nil {
+			known := false
+			for _, s := range sentinels {
+				known = known || errors.Is(err, s)
+			}
+			if !known || strings.Contains(err.Error(), "\n") {
+				t.Fatalf("Read error %q: not one line wrapping a sentinel", err)
+			}
+			return
+		}
+		keys := map[string]bool{}
+		for i, a := range as {
+			if len(a.Line) < 2 || a.Index != i || a.Name == "" {
+				t.Fatalf("alignment %d: %+v", i, a)
+			}
+			for j := 1; j < len(a.Line); j++ {
+				if a.Line[j] == a.Line[j-1] {
+					t.Fatalf("alignment %q: repeated vertex %d", a.Name, j)
+				}
+			}
+			k := nameKey(a.Name)
+			if keys[k] {
+				t.Fatalf("alignment %q: folder name %q used twice", a.Name, k)
+			}
+			keys[k] = true
+		}
+	})
+}
+
+// FuzzStation: StationLine never panics; it either returns a validation
+// error or stations whose chainage strictly increases from start to
+// start + length (tolerance in checkStations).
+func FuzzStation(f *testing.F) {
+	f.Add(500000.0, 4000000.0, 500300.0, 4000000.0, 500300.0, 4000400.0, 1.0, 100.0, 0.0)
+	f.Add(0.0, 0.0, 300.0, 0.0, 300.0, 400.0, 0.3048, 30.48, -12.5)
+	f.Add(0.0, 0.0, 0.0, 0.0, 1.0, 1.0, 0.0, 0.7, 1e6)
+	f.Add(0.0, 0.0, 1e-300, 0.0, 2e-300, 0.0, 1.0, 1e-310, 0.0)
+	f.Add(1e300, 1e300, -1e300, -1e300, 0.0, 0.0, 1.0, 1e299, 0.0)
+	f.Add(0.0, 0.0, 1.0, 0.0, 1.0, 1e-9, 1.0, 0.5, 1e20)
+	f.Add(0.0, 0.0, 10.0, 0.0, 20.0, 0.0, 1.0, 5.0, 1e17)
+	f.Fuzz(func(t *testing.T, x0, y0, x1, y1, x2, y2, unit, spacing, start float64) {
+		line := orb.LineString{{x0, y0}, {x1, y1}, {x2, y2}}
+		u := unit
+		if u == 0 {
+			u = 1
+		}
+		if n := Length(line, u) / spacing; n > 2e5 {
+			t.Skip("too many stations for a fuzz iteration")
+		}
+		got, err := StationLine(line, unit, spacing, start)
+		if err != nil {
+			for _, s := range []error{ErrUnit, ErrSpacing, ErrStart, ErrGeometry, ErrTooManyStations} {
+				if errors.Is(err, s) {
+					return
+				}
+			}
+			t.Fatalf("unexpected error %v", err)
+		}
+		if err := checkStations(line, unit, spacing, start, got); err != nil {
+			t.Fatal(err)
+		}
+		if last, want := got[len(got)-1].Chainage, start+Length(line, unit); last != want {
+			t.Fatalf("last chainage %v, want start + Length = %v exactly", last, want)
+		}
+	})
+}
+
+// FuzzParseStation: ParseStation never panics; what it accepts is a finite
+// chainage whose label parses back to the same label.
+func FuzzParseStation(f *testing.F) {
+	for _, s := range []string{"1+250.00", "12+50.00", "-0+012.30", "0+000", "1+250.123456789", "999999999+999.99", "1+25", "+", "-", "1e3+000", " 7+07.07 "} {
+		f.Add(s, false)
+		f.Add(s, true)
+	}
+	f.Fuzz(func(t *testing.T, s string, us bool) {
+		v, err := ParseStation(s, us)
+		if err != nil {
+			return
+		}
+		unit := 1.0
+		if us {
+			unit = FootM
+		}
+		if math.IsNaN(v) || math.IsInf(v, 0) || math.Abs(v) >= maxLabelUnits*unit {
+			t.Fatalf("ParseStation(%q) = %v", s, v)
+		}
+		label := FormatStation(v, us)
+		v2, err := ParseStation(label, us)
+		if err != nil {
+			t.Fatalf("ParseStation(FormatStation(%v) = %q): %v", v, label, err)
+		}
+		// Labels round to hundredths of the unit; allow a relative 1e-12 for
+		// the float conversions.
+		if math.Abs(v2-v) > 0.005*unit+1e-12*math.Abs(v) {
+			t.Fatalf("%q → %v → %q → %v: moved more than half a hundredth", s, v, label, v2)
+		}
+		if again := FormatStation(v2, us); again != label {
+			t.Fatalf("%q → %q → %q: label not stable", s, label, again)
+		}
+	})
+}
+
+// FuzzFormatStation: every label FormatStation writes for a chainage in
+// range parses back, and formats to itself.
+func FuzzFormatStation(f *testing.F) {
+	for _, v := range []float64{0, 1250, 381, -12.3, 999.995, 0.005, 1e11, -0.004} {
+		f.Add(v, false)
+		f.Add(v, true)
+	}
+	f.Fuzz(func(t *testing.T, v float64, us bool) {
+		label := FormatStation(v, us)
+		unit := 1.0
+		if us {
+			unit = FootM
+		}
+		if math.IsNaN(v) || math.Abs(v) >= maxLabelUnits*unit*(1-1e-9) {
+			return
+		}
+		got, err := ParseStation(label, us)
+		if err != nil {
+			t.Fatalf("ParseStation(FormatStation(%v) = %q): %v", v, label, err)
+		}
+		if back := FormatStation(got, us); back != label {
+			t.Fatalf("%v → %q → %v → %q", v, label, got, back)
+		}
+	})
+}
+
+// FuzzSafeName: every name becomes a safe, stable folder name.
+func FuzzSafeName(f *testing.F) {
+	for _, s := range []string{"Main canal", "../x", "..", "", "CON", "a\x00b", strings.Repeat("é", 60)} {
+		f.Add(s)
+	}
+	f.Fuzz(checkSafeName)
+}
