@@ -22,6 +22,7 @@ func commands() []command {
 	return []command{
 		// Each subcommand adds one line here.
 		{"profile", "ground long section along each alignment (ground.csv, ground.png)", runProfile},
+		{"demo", "build the fictional demo scheme on generated terrain and run canalstep on it", runDemo},
 	}
 }
 

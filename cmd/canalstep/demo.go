@@ -1,0 +1,145 @@
+package main
+
+import (
+	"context"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"strconv"
+
+	"canalstep/report"
+	"canalstep/terrain"
+)
+
+// runDemo implements `canalstep demo`: it generates the fictional demo scheme
+// (a seeded synthetic DEM and its canal alignments) and runs the other
+// commands on it, exactly as a user would call them.
+func runDemo(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+	fs := newFlagSet("demo", stdout)
+	out := fs.String("out", "canalstep-out", "output folder: inputs/ holds the generated DEM and alignments, one sub-folder per alignment the results")
+	seed := fs.Uint64("seed", 7, "seed of the synthetic terrain (the same seed gives the same DEM, byte for byte)")
+	fs.Usage = func() {
+		fmt.Fprintln(stdout, "Usage: canalstep demo [--out DIR] [--seed N]")
+		fmt.Fprintf(stdout, "\nBuilds the fictional %s on generated terrain and runs canalstep on it.\n\nFlags:\n", terrain.DemoSchemeName)
+		fs.PrintDefaults()
+	}
+	if ok, err := parseFlags(fs, args); !ok {
+		return err
+	}
+	in := filepath.Join(*out, "inputs")
+	dem := filepath.Join(in, "dem.tif")
+	aln := filepath.Join(in, "canals.geojson")
+	fmt.Fprintf(stdout, "== %s (fictional), terrain seed %d\n", terrain.DemoSchemeName, *seed)
+	if err := writeDemoInputs(dem, aln, *seed); err != nil {
+		return fmt.Errorf("demo inputs: %w", err)
+	}
+	fmt.Fprintf(stdout, "DEM: %s\nalignments: %s\n", dem, aln)
+
+	steps := [][]string{
+		{"profile", "--dem", dem, "--alignment", aln, "--spacing", "10", "--out", *out},
+	}
+	for _, s := range steps {
+		if err := ctx.Err(); err != nil {
+			return err
+		}
+		fmt.Fprintf(stdout, "\n$ canalstep %s\n", quoteArgs(s))
+		if err := run(ctx, s, stdout, stderr); err != nil {
+			return fmt.Errorf("demo step %q: %w", s[0], err)
+		}
+	}
+	fmt.Fprintf(stdout, "\nDemo outputs are in %s/<alignment>/.\n", *out)
+	return nil
+}
+
+// writeDemoInputs writes the synthetic DEM and the demo alignments, the
+// latter as RFC 7946 GeoJSON in WGS 84 lon/lat.
+func writeDemoInputs(demPath, alnPath string, seed uint64) error {
+	if err := os.MkdirAll(filepath.Dir(demPath), 0o755); err != nil {
+		return err
+	}
+	if err := terrain.WriteGeoTIFF(demPath, terrain.SyntheticFan(seed)); err != nil {
+		return err
+	}
+	tr, err := terrain.NewTransform(fmt.Sprintf("EPSG:%d", terrain.DemoEPSG), lonLatCRS)
+	if err != nil {
+		return err
+	}
+	defer tr.Close()
+	var fc geoJSONLines
+	for _, a := range terrain.DemoAlignments() {
+		xs, ys := make([]float64, len(a.Vertices)), make([]float64, len(a.Vertices))
+		for i, v := range a.Vertices {
+			xs[i], ys[i] = v[0], v[1]
+		}
+		if err := tr.Transform(xs, ys); err != nil {
+			return fmt.Errorf("alignment %q to lon/lat: %w", a.Name, err)
+		}
+		fc.add(a.Name, xs, ys)
+	}
+	return report.WriteFileAtomic(alnPath, fc.write)
+}
+
+// geoJSONLines builds a FeatureCollection of named LineStrings in lon/lat
+// (RFC 7946), coordinates to 1e-9 degree (about 0.1 mm).
+type geoJSONLines struct{ features []string }
+
+func (g *geoJSONLines) add(name string, lon, lat []float64) {
+	b := []byte(`{"type":"Feature","properties":{"name":`)
+	b = strconv.AppendQuote(b, name)
+	b = append(b, `},"geometry":{"type":"LineString","coordinates":[`...)
+	for i := range lon {
+		if i > 0 {
+			b = append(b, ',')
+		}
+		b = append(b, '[')
+		b = strconv.AppendFloat(b, lon[i], 'f', 9, 64)
+		b = append(b, ',')
+		b = strconv.AppendFloat(b, lat[i], 'f', 9, 64)
+		b = append(b, ']')
+	}
+	b = append(b, "]}}"...)
+	g.features = append(g.features, string(b))
+}
+
+func (g *geoJSONLines) write(w io.Writer) error {
+	if _, err := io.WriteString(w, "{\"type\":\"FeatureCollection\",\"features\":[\n"); err != nil {
+		return err
+	}
+	for i, f := range g.features {
+		sep := ",\n"
+		if i == len(g.features)-1 {
+			sep = "\n"
+		}
+		if _, err := io.WriteString(w, f+sep); err != nil {
+			return err
+		}
+	}
+	_, err := io.WriteString(w, "]}\n")
+	return err
+}
+
+// quoteArgs prints a command line so that it can be pasted into a shell.
+func quoteArgs(args []string) string {
+	s := ""
+	for i, a := range args {
+		if i > 0 {
+			s += " "
+		}
+		if a == "" || containsShellSpecial(a) {
+			a = strconv.Quote(a)
+		}
+		s += a
+	}
+	return s
+}
+
+func containsShellSpecial(s string) bool {
+	for _, r := range s {
+		switch r {
+		case ' ', '\t', '"', '\'', ';', '&', '|', '$', '*', '?', '(', ')', '<', '>', '\\':
+			return true
+		}
+	}
+	return false
+}
