@@ -133,7 +133,9 @@ func JumpLength(y1, y2 float64) float64 { return 6.9 * (y2 - y1) }
 // upstream bed that makes the upstream specific energy equal upstreamEnergy
 // (m) when critical depth yc (m) forms on the crest: p = E − 1.5·yc
 // (reference sheet §4.5, derived; approach losses neglected). A negative
-// result means the crest is too wide to control the flow at bed level.
+// result means the crest is narrower than the control width: even at bed
+// level it chokes the flow and backs the water up. (The sheet says "too
+// wide"; the algebra says too narrow: a narrower crest has a larger yc.)
 func CrestRaise(upstreamEnergy, yc float64) float64 { return upstreamEnergy - 1.5*yc }
 
 // ControlWidth returns the width (m) of a rectangular crest at bed level
@@ -246,8 +248,8 @@ type OutletCheck struct {
 // makes the tailwater at the basin end reach in.HoldRatio times the
 // required sequent depth at the design flow and at every in.HoldFlows
 // (reference sheet §3–§4). When the crest would have to sit below the
-// upstream bed, it stays at bed level and a warning gives the control width
-// or suggests a notch.
+// upstream bed (a crest narrower than the control width), it stays at bed
+// level and a warning gives the control width or suggests a notch.
 func DesignDrop(c Consts, in DropInput) (Drop, error) {
 	if err := c.validate(); err != nil {
 		return Drop{}, err
@@ -294,8 +296,10 @@ func DesignDrop(c Consts, in DropInput) (Drop, error) {
 	ycCrest := math.Cbrt(c.alpha() * d.UnitDischarge * d.UnitDischarge / c.G)
 	d.CrestRaise = CrestRaise(eUp, ycCrest)
 	if d.CrestRaise < 0 {
-		d.Warnings = append(d.Warnings, fmt.Sprintf("crest of width %.3f m cannot hold the upstream normal depth even at bed level (it would need %.3f m below the bed): the water surface draws down upstream (M2); narrow the crest to %.3f m or use a control notch",
-			in.CrestWidth, -d.CrestRaise, d.ControlWidth))
+		// Critical flow on a bed-level crest this narrow needs more energy
+		// than the canal has: the crest chokes the flow and backs water up.
+		d.Warnings = append(d.Warnings, fmt.Sprintf("crest of width %.3f m is narrower than the control width %.3f m: even at bed level it backs the upstream water up (M1) by about %.3f m of energy, eating into the freeboard; widen the crest or use a control notch",
+			in.CrestWidth, d.ControlWidth, -d.CrestRaise))
 		d.CrestRaise = 0
 	}
 

@@ -103,10 +103,9 @@ func KennedySlopeLimits(c Consts, s Section, q, n, maxVelocity, m float64) (Slop
 	b, z := s.BottomWidth, s.SideSlope
 	// ln(0.55·m) + 0.64·ln y + ln A(y) − ln Q rises from −∞ to +∞ in ln y.
 	off := math.Log(0.55*m) - math.Log(q)
-	yk, err := solveLog(0, func(u float64) (float64, float64) {
-		y := math.Exp(u)
+	yk, err := solveLog(1, func(y float64) (float64, float64) {
 		a := (b + z*y) * y
-		return off + 0.64*u + math.Log(a), 0.64 + y*(b+2*z*y)/a
+		return off + 0.64*math.Log(y) + math.Log(a), 0.64 + y*(b+2*z*y)/a
 	})
 	if err != nil {
 		return lim, fmt.Errorf("Kennedy depth: %w", err)
