@@ -13,10 +13,11 @@ type block struct {
 // used one. Lookups along a route hit the same block many times in a row, so
 // the last block found is remembered apart from the map.
 type blockCache struct {
-	cap  int
-	m    map[int]*block
-	last *block
-	tick uint64
+	cap     int
+	m       map[int]*block
+	last    *block
+	tick    uint64
+	pending int // slots handed out and not yet added or released
 }
 
 func (c *blockCache) init(capacity int) {
@@ -24,6 +25,7 @@ func (c *blockCache) init(capacity int) {
 	c.m = make(map[int]*block, capacity)
 	c.last = nil
 	c.tick = 0
+	c.pending = 0
 }
 
 // get returns the cached block with key, or nil.
@@ -40,11 +42,12 @@ func (c *blockCache) get(key int) *block {
 	return b
 }
 
-// slot returns a block to fill with n values for key: a new one while the
-// cache has room, else the least recently used one, removed from the map.
-// The caller fills it and calls add.
+// slot returns a block to fill with n values: a new one while the cache
+// has room, else the least recently used one, removed from the map. The
+// caller fills it and calls add, or release if filling failed.
 func (c *blockCache) slot(n int) *block {
-	if len(c.m) < c.cap {
+	c.pending++
+	if len(c.m)+c.pending <= c.cap || len(c.m) == 0 {
 		return &block{data: make([]float32, n)}
 	}
 	var lru *block
@@ -64,8 +67,12 @@ func (c *blockCache) slot(n int) *block {
 	return lru
 }
 
+// release gives back a slot that could not be filled.
+func (c *blockCache) release() { c.pending-- }
+
 // add inserts a filled block.
 func (c *blockCache) add(b *block) {
+	c.pending--
 	c.tick++
 	b.used = c.tick
 	c.m[b.key] = b

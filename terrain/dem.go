@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"runtime"
 	"strings"
 	"sync"
 
@@ -43,6 +44,10 @@ type Options struct {
 	// CacheBlocks bounds the number of decoded blocks kept in memory. Zero
 	// means enough blocks for about 32 MB, and at least 16.
 	CacheBlocks int
+	// Readers is the number of GDAL handles that decode blocks in parallel
+	// (each extra one is a second open of the same path). Zero means
+	// min(GOMAXPROCS, 4); 1 decodes on the calling goroutine only.
+	Readers int
 }
 
 // Errors returned (wrapped, with the path) by [Open] for DEMs that cannot be
@@ -119,6 +124,9 @@ type DEM struct {
 	ntx        int     // cached blocks per row
 	cache      blockCache
 	blocksRead int
+	readers    int      // parallel decoders wanted (Options.Readers)
+	pool       []reader // open decoders; pool[0] is ds itself
+	missing    []int    // scratch for prefetch
 }
 
 // Open opens the raster at path (anything GDAL opens, including /vsi… paths)
@@ -139,6 +147,9 @@ func Open(path string, opt Options) (*DEM, error) {
 	}
 	if opt.CacheBlocks < 0 {
 		return nil, fmt.Errorf("cache size %d blocks is negative", opt.CacheBlocks)
+	}
+	if opt.Readers < 0 {
+		return nil, fmt.Errorf("%d parallel readers is negative", opt.Readers)
 	}
 	ds, err := godal.Open(path, godal.RasterOnly())
 	if err != nil {
@@ -229,6 +240,10 @@ func newDEM(ds *godal.Dataset, path, zu string, zf float64, opt Options) (*DEM, 
 		tw:        tw,
 		th:        th,
 		ntx:       (st.SizeX + tw - 1) / tw,
+		readers:   opt.Readers,
+	}
+	if d.readers == 0 {
+		d.readers = min(runtime.GOMAXPROCS(0), 4)
 	}
 	d.cache.init(nblocks)
 	return d, nil
@@ -271,5 +286,5 @@ func (d *DEM) Close() error {
 	}
 	d.closed = true
 	d.cache.init(0)
-	return d.ds.Close()
+	return errors.Join(d.closeReaders(), d.ds.Close())
 }

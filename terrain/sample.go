@@ -43,8 +43,9 @@ var errClosed = errors.New("DEM is closed")
 // that cannot be read) stop sampling.
 //
 // Sample reads only the blocks the points touch, through the block cache;
-// sampling points in route order reuses each block. It panics if the slices
-// differ in length.
+// sampling points in route order reuses each block. Looking a few thousand
+// points ahead, it decodes the blocks they need in parallel (see
+// Options.Readers). It panics if the slices differ in length.
 func (d *DEM) Sample(xs, ys, out []float64) error {
 	if len(ys) != len(xs) || len(out) != len(xs) {
 		panic(fmt.Sprintf("terrain: Sample with %d xs, %d ys, %d out", len(xs), len(ys), len(out)))
@@ -58,6 +59,12 @@ func (d *DEM) Sample(xs, ys, out []float64) error {
 	x0, dx, y0, dy := d.gt[0], d.gt[1], d.gt[3], d.gt[5]
 	hiC, hiR := d.fw-0.5, d.fh-0.5
 	for i, x := range xs {
+		if i%prefetchChunk == 0 {
+			end := min(i+prefetchChunk, len(xs))
+			if err := d.prefetch(xs[i:end], ys[i:end]); err != nil {
+				return err
+			}
+		}
 		fc := (x-x0)/dx - 0.5 // column of the point, 0 at the first cell centre
 		fr := (ys[i]-y0)/dy - 0.5
 		if !(fc >= -0.5 && fc <= hiC && fr >= -0.5 && fr <= hiR) {
@@ -176,6 +183,7 @@ func (d *DEM) block(bx, by int) (*block, error) {
 	w, h := min(d.tw, d.w-x0), min(d.th, d.h-y0)
 	b := d.cache.slot(w * h)
 	if err := d.band.Read(x0, y0, b.data, w, h); err != nil {
+		d.cache.release()
 		return nil, fmt.Errorf("read DEM block at column %d, row %d: %w", x0, y0, err)
 	}
 	b.key, b.x0, b.y0, b.w = key, x0, y0, w

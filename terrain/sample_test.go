@@ -303,6 +303,22 @@ func TestBlocksReadAndEviction(t *testing.T) {
 		t.Errorf("tiled, second pass: %d blocks read in all, want %d (all cached)", got, want)
 	}
 
+	// Parallel decoding (three GDAL handles) or none must not change a value
+	// nor the blocks decoded.
+	for _, readers := range []int{1, 3} {
+		p := mustOpen(t, tiled, terrain.Options{Readers: readers})
+		got := make([]float64, len(xs))
+		if err := p.Sample(xs, ys, got); err != nil {
+			t.Fatal(err)
+		}
+		if !slices.Equal(got, ref) {
+			t.Errorf("%d readers: samples differ", readers)
+		}
+		if p.BlocksRead() != len(blocks) {
+			t.Errorf("%d readers: %d blocks read, want %d", readers, p.BlocksRead(), len(blocks))
+		}
+	}
+
 	small := mustOpen(t, tiled, terrain.Options{CacheBlocks: 2})
 	got := make([]float64, len(xs))
 	// Reversed order twice defeats a 2-block cache on the stencils that

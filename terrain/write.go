@@ -118,6 +118,10 @@ func WriteGeoTIFF(path string, g Grid, opts ...WriteOption) (err error) {
 		return fmt.Errorf("write %s: %w", path, err)
 	}
 	if target != path {
+		// os.CreateTemp made the file private; a DEM is an ordinary file.
+		if err := os.Chmod(target, 0o644); err != nil {
+			return fmt.Errorf("write %s: %w", path, err)
+		}
 		if err := os.Rename(target, path); err != nil {
 			return fmt.Errorf("write %s: %w", path, err)
 		}

@@ -1,0 +1,113 @@
+#!/usr/bin/env bash
+# bench.sh measures canalstep's speed and memory side by side with reference
+# tools, in one run on this machine, and prints ratios (never pass/fail).
+#
+#   scripts/bench.sh            all parts
+#   scripts/bench.sh profile    DEM sampling along an alignment only
+#
+# Inputs are generated once into bench-out/ (BENCH_OUT overrides): a
+# 20000×20000 Float32 DEM (10 m cells, DEFLATE, 256² tiles, about 1.3 GB)
+# and a 40 km alignment. Each part is a function bench_<part>; add parts
+# below and list them in bench_parts.
+set -euo pipefail
+cd "$(dirname "$0")/.."
+# shellcheck source=scripts/setup.sh
+source scripts/setup.sh
+canalstep_setup coinor-cbc python3-rasterio hyperfine time
+
+BENCH_OUT=${BENCH_OUT:-bench-out}
+BENCH_RUNS=${BENCH_RUNS:-10}
+PY=/usr/bin/python3 # python3-rasterio is installed for the system Python
+
+bench_parts=(profile)
+
+bench_build() {
+	mkdir -p bin
+	go build -o bin/canalstep ./cmd/canalstep
+	go build -o bin/benchsample scripts/benchsample.go
+}
+
+bench_data() {
+	go run scripts/benchdata.go -out "$BENCH_OUT"
+}
+
+# peak_rss_mb CMD... prints the peak resident set size of CMD in MB.
+peak_rss_mb() {
+	/usr/bin/time -v "$@" 2>&1 >/dev/null | awk -F: '/Maximum resident set size/ { printf "%.1f", $2 / 1024 }'
+}
+
+# bench_profile: ground profile along the 40 km alignment at 1 m spacing
+# (40,049 points: every metre plus the vertices), bilinear.
+#   canalstep    bin/canalstep profile (CSV + PNG outputs included)
+#   terrain      package terrain alone: read points, Open, Sample (bilinear)
+#   gdallocinfo  gdallocationinfo -valonly -geoloc, points on stdin (nearest)
+#   python       rasterio + numpy, touched blocks only, bilinear
+bench_profile() {
+	local dem="$BENCH_OUT/dem.tif" route="$BENCH_OUT/route.geojson" pts="$BENCH_OUT/points.txt"
+	local prof_out="$BENCH_OUT/profile-out"
+	local have_profile=0
+	if bin/canalstep profile --help >/dev/null 2>&1; then have_profile=1; fi
+
+	echo "== profile: $(wc -l <"$pts") points on a $(gdalinfo "$dem" | awk '/^Size is/ {print $3 $4}') DEM"
+	# Same numbers from both bilinear implementations first.
+	bin/benchsample -o "$BENCH_OUT/z_terrain.txt" "$dem" "$pts"
+	"$PY" scripts/bench_rasterio.py -o "$BENCH_OUT/z_python.txt" "$dem" "$pts"
+	"$PY" -c 'import numpy as np, sys
+a, b = np.loadtxt(sys.argv[1]), np.loadtxt(sys.argv[2])
+print("terrain vs python: max |diff| %.6f m over %d points" % (np.nanmax(np.abs(a - b)), len(a)))' \
+		"$BENCH_OUT/z_terrain.txt" "$BENCH_OUT/z_python.txt"
+
+	local cmds=(
+		-n terrain "bin/benchsample $dem $pts"
+		-n gdallocinfo "gdallocationinfo -valonly -geoloc $dem < $pts > /dev/null"
+		-n python "$PY scripts/bench_rasterio.py $dem $pts"
+	)
+	if [ "$have_profile" = 1 ]; then
+		cmds=(-n canalstep "bin/canalstep profile --dem $dem --alignment $route --spacing 1 --out $prof_out" "${cmds[@]}")
+	else
+		echo "(bin/canalstep has no profile command yet: timing the terrain package alone)"
+	fi
+	hyperfine --style basic --warmup 2 --runs "$BENCH_RUNS" --export-json "$BENCH_OUT/profile-times.json" "${cmds[@]}"
+
+	echo
+	echo "== profile: wall time (mean of $BENCH_RUNS runs, warm file cache)"
+	"$PY" - "$BENCH_OUT/profile-times.json" <<'PYEOF'
+import json, sys
+res = {r["command"]: r for r in json.load(open(sys.argv[1]))["results"]}
+g, p = res["gdallocinfo"]["mean"], res["python"]["mean"]
+for name in ("canalstep", "terrain", "gdallocinfo", "python"):
+    if name in res:
+        r = res[name]
+        print("  %-12s %7.1f ms ± %4.1f   %5.2f× gdallocationinfo   %5.3f× python"
+              % (name, r["mean"] * 1e3, r["stddev"] * 1e3, r["mean"] / g, r["mean"] / p))
+print("  goals: canalstep ≤ 0.5× gdallocationinfo (while bilinear), ≤ 0.2× python")
+PYEOF
+
+	echo "== profile: peak RSS (/usr/bin/time -v; goal < 100 MB)"
+	printf '  %-12s %6s MB\n' terrain "$(peak_rss_mb bin/benchsample "$dem" "$pts")"
+	if [ "$have_profile" = 1 ]; then
+		printf '  %-12s %6s MB\n' canalstep "$(peak_rss_mb bin/canalstep profile --dem "$dem" --alignment "$route" --spacing 1 --out "$prof_out")"
+	fi
+	printf '  %-12s %6s MB\n' gdallocinfo "$(peak_rss_mb sh -c "gdallocationinfo -valonly -geoloc $dem < $pts")"
+	printf '  %-12s %6s MB\n' python "$(peak_rss_mb "$PY" scripts/bench_rasterio.py "$dem" "$pts")"
+
+	echo
+	echo "== profile: blocks decoded"
+	bin/benchsample "$dem" "$pts" 2>&1 | sed 's/^/  /'
+	if [ "$have_profile" = 1 ]; then
+		bin/canalstep profile --dem "$dem" --alignment "$route" --spacing 1 --out "$prof_out" 2>&1 | grep -i block | sed 's/^/  canalstep: /' || true
+	fi
+}
+
+bench_main() {
+	local parts=("$@")
+	if [ "${#parts[@]}" -eq 0 ]; then parts=("${bench_parts[@]}"); fi
+	bench_build
+	bench_data
+	local p
+	for p in "${parts[@]}"; do
+		"bench_$p"
+	done
+}
+
+bench_main "$@"

@@ -1,0 +1,166 @@
+//go:build ignore
+
+// Benchdata writes the inputs of scripts/bench.sh into a folder (default
+// bench-out/):
+//
+//	dem.tif        20000×20000 Float32 cells of 10 m (200 km square) in
+//	               EPSG:32633, DEFLATE, 256² tiles: a smooth synthetic
+//	               surface, written band by band so memory stays small.
+//	               Skipped when it already exists.
+//	route.geojson  a 40 km alignment with 50 vertices (lon/lat, RFC 7946).
+//	points.txt     the stations every 1 m along it, plus its vertices, as
+//	               "x y" in the DEM's CRS: what the profile command samples,
+//	               fed to gdallocationinfo and the Python reference.
+//
+// Usage: go run scripts/benchdata.go [-out bench-out] [-size 20000]
+//
+// The terrain and route are invented for the benchmark.
+package main
+
+import (
+	"bufio"
+	"encoding/json"
+	"flag"
+	"fmt"
+	"log"
+	"math"
+	"os"
+	"path/filepath"
+
+	"canalstep/terrain"
+)
+
+const (
+	epsg    = 32633 // UTM zone 33N
+	x0, y0  = 300000.0, 4300000.0
+	cell    = 10.0    // m
+	routeM  = 40000.0 // route length, m
+	nVertex = 50      // route vertices
+	spacing = 1.0     // station spacing, m
+)
+
+func main() {
+	out := flag.String("out", "bench-out", "output folder")
+	size := flag.Int("size", 20000, "DEM width and height in cells")
+	flag.Parse()
+	if err := os.MkdirAll(*out, 0o755); err != nil {
+		log.Fatal(err)
+	}
+	dem := filepath.Join(*out, "dem.tif")
+	if _, err := os.Stat(dem); err == nil {
+		fmt.Fprintf(os.Stderr, "benchdata: %s exists, kept\n", dem)
+	} else {
+		if err := writeDEM(dem, *size); err != nil {
+			log.Fatal(err)
+		}
+	}
+	if err := writeRoute(*out); err != nil {
+		log.Fatal(err)
+	}
+}
+
+// elevation is a smooth surface in metres: a plain falling 0.4 % to the
+// south-east with long swells and a gentle valley pattern.
+func elevation(e, n float64) float64 {
+	return 420 - 0.004*(e-x0)*0.6 - 0.004*(y0-n)*0.8 +
+		25*math.Sin(e/5200)*math.Cos(n/7300) + 6*math.Sin((e+n)/1900)
+}
+
+func writeDEM(path string, size int) error {
+	g := terrain.Grid{
+		Width: size, Height: size, EPSG: epsg,
+		GeoTransform: [6]float64{x0, cell, 0, y0, 0, -cell},
+		NoData:       -9999, HasNoData: true,
+		Rows: func(row0, n int, dst []float32) error {
+			for r := range n {
+				nn := y0 - (float64(row0+r)+0.5)*cell
+				row := dst[r*size : (r+1)*size]
+				for c := range row {
+					row[c] = float32(elevation(x0+(float64(c)+0.5)*cell, nn))
+				}
+			}
+			return nil
+		},
+	}
+	fmt.Fprintf(os.Stderr, "benchdata: writing %s (%d×%d cells)\n", path, size, size)
+	return terrain.WriteGeoTIFF(path, g)
+}
+
+// vertices returns the route in the DEM's CRS: 49 equal legs of
+// routeM/49 m whose bearing swings around south-east.
+func vertices() (xs, ys []float64) {
+	leg := routeM / (nVertex - 1)
+	x, y := 350000.0, 4250000.0
+	xs, ys = []float64{x}, []float64{y}
+	for i := 1; i < nVertex; i++ {
+		bearing := (125 + 30*math.Sin(float64(i)/4)) * math.Pi / 180 // from north, clockwise
+		x += leg * math.Sin(bearing)
+		y += leg * math.Cos(bearing)
+		xs, ys = append(xs, x), append(ys, y)
+	}
+	return xs, ys
+}
+
+func writeRoute(dir string) error {
+	vx, vy := vertices()
+	// Stations every spacing metres along the legs, plus every vertex.
+	pf, err := os.Create(filepath.Join(dir, "points.txt"))
+	if err != nil {
+		return err
+	}
+	w := bufio.NewWriter(pf)
+	n := 0
+	emit := func(x, y float64) { fmt.Fprintf(w, "%.3f %.3f\n", x, y); n++ }
+	chain := 0.0
+	next := 0.0
+	for i := 0; i+1 < len(vx); i++ {
+		dx, dy := vx[i+1]-vx[i], vy[i+1]-vy[i]
+		l := math.Hypot(dx, dy)
+		emit(vx[i], vy[i])
+		if next == chain {
+			next += spacing
+		}
+		for ; next < chain+l-1e-9; next += spacing {
+			f := (next - chain) / l
+			emit(vx[i]+f*dx, vy[i]+f*dy)
+		}
+		chain += l
+	}
+	emit(vx[len(vx)-1], vy[len(vy)-1])
+	if err := w.Flush(); err != nil {
+		return err
+	}
+	if err := pf.Close(); err != nil {
+		return err
+	}
+
+	tr, err := terrain.NewTransform(fmt.Sprintf("EPSG:%d", epsg), "OGC:CRS84")
+	if err != nil {
+		return err
+	}
+	defer tr.Close()
+	if err := tr.Transform(vx, vy); err != nil {
+		return err
+	}
+	coords := make([][2]float64, len(vx))
+	for i := range vx {
+		coords[i] = [2]float64{math.Round(vx[i]*1e9) / 1e9, math.Round(vy[i]*1e9) / 1e9}
+	}
+	fc := map[string]any{
+		"type": "FeatureCollection",
+		"features": []any{map[string]any{
+			"type":       "Feature",
+			"properties": map[string]any{"name": "bench-40km"},
+			"geometry":   map[string]any{"type": "LineString", "coordinates": coords},
+		}},
+	}
+	b, err := json.Marshal(fc)
+	if err != nil {
+		return err
+	}
+	if err := os.WriteFile(filepath.Join(dir, "route.geojson"), b, 0o644); err != nil {
+		return err
+	}
+	fmt.Fprintf(os.Stderr, "benchdata: route %.0f m, %d vertices, %d points\n", chain, len(vx), n)
+	return nil
+}

@@ -1,0 +1,99 @@
+//go:build ignore
+
+// Benchsample samples a DEM bilinearly at the "x y" points of a file (or
+// stdin) with package terrain, as the profile command does, and prints how
+// long opening and sampling took and how many blocks were decoded. With -o
+// it writes the elevations, one per line. scripts/bench.sh times it beside
+// gdallocationinfo and a Python reference.
+//
+// Usage: go run scripts/benchsample.go [-o FILE] DEM [POINTS]
+package main
+
+import (
+	"bufio"
+	"flag"
+	"fmt"
+	"io"
+	"log"
+	"os"
+	"strconv"
+	"strings"
+	"time"
+
+	"canalstep/terrain"
+)
+
+func main() {
+	outPath := flag.String("o", "", "write elevations (m) to this file")
+	flag.Parse()
+	if flag.NArg() < 1 {
+		log.Fatal("usage: benchsample [-o FILE] DEM [POINTS]")
+	}
+	var in io.Reader = os.Stdin
+	if flag.NArg() > 1 {
+		f, err := os.Open(flag.Arg(1))
+		if err != nil {
+			log.Fatal(err)
+		}
+		defer f.Close()
+		in = f
+	}
+	t0 := time.Now()
+	xs, ys, err := readPoints(in)
+	if err != nil {
+		log.Fatal(err)
+	}
+	t1 := time.Now()
+	dem, err := terrain.Open(flag.Arg(0), terrain.Options{})
+	if err != nil {
+		log.Fatal(err)
+	}
+	defer dem.Close()
+	t2 := time.Now()
+	z := make([]float64, len(xs))
+	if err := dem.Sample(xs, ys, z); err != nil {
+		log.Fatal(err)
+	}
+	t3 := time.Now()
+	if *outPath != "" {
+		f, err := os.Create(*outPath)
+		if err != nil {
+			log.Fatal(err)
+		}
+		w := bufio.NewWriter(f)
+		for _, v := range z {
+			fmt.Fprintf(w, "%.4f\n", v)
+		}
+		if err := w.Flush(); err != nil {
+			log.Fatal(err)
+		}
+		if err := f.Close(); err != nil {
+			log.Fatal(err)
+		}
+	}
+	in2 := dem.Info()
+	fmt.Fprintf(os.Stderr, "benchsample: %d points; read points %.1f ms, open %.1f ms, sample %.1f ms (%.0f ns/point); %d of %d blocks decoded (%d×%d cells each)\n",
+		len(xs), ms(t1.Sub(t0)), ms(t2.Sub(t1)), ms(t3.Sub(t2)), float64(t3.Sub(t2).Nanoseconds())/float64(len(xs)),
+		dem.BlocksRead(), ceilDiv(in2.Width, in2.CacheBlockX)*ceilDiv(in2.Height, in2.CacheBlockY), in2.CacheBlockX, in2.CacheBlockY)
+}
+
+func ms(d time.Duration) float64 { return float64(d.Microseconds()) / 1000 }
+
+func ceilDiv(a, b int) int { return (a + b - 1) / b }
+
+func readPoints(r io.Reader) (xs, ys []float64, err error) {
+	sc := bufio.NewScanner(r)
+	for sc.Scan() {
+		f := strings.Fields(sc.Text())
+		if len(f) < 2 {
+			continue
+		}
+		x, err1 := strconv.ParseFloat(f[0], 64)
+		y, err2 := strconv.ParseFloat(f[1], 64)
+		if err1 != nil || err2 != nil {
+			return nil, nil, fmt.Errorf("bad point line %q", sc.Text())
+		}
+		xs, ys = append(xs, x), append(ys, y)
+	}
+	return xs, ys, sc.Err()
+}

@@ -1,0 +1,162 @@
+package terrain
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"sync"
+
+	"github.com/airbusgeo/godal"
+)
+
+// prefetchChunk is how many points [DEM.Sample] looks ahead to find the
+// blocks it will need, so that several can be decoded at once.
+const prefetchChunk = 8192
+
+// reader is a GDAL handle used to decode blocks in parallel with the
+// others; a GDAL dataset must not be used by two threads at once, so each
+// parallel reader has its own.
+type reader struct {
+	ds   *godal.Dataset
+	band godal.Band
+}
+
+// prefetch decodes, in parallel, the blocks that the points in xs, ys need
+// and the cache does not hold, when there are at least two and they fit
+// comfortably in the cache. Otherwise it leaves the work to the sampling
+// loop, which decodes blocks one at a time as it meets them. Cached blocks
+// that the points need are touched, so that the slots taken for the new
+// blocks evict other ones.
+func (d *DEM) prefetch(xs, ys []float64) error {
+	if d.readers < 2 {
+		return nil
+	}
+	missing := d.missing[:0]
+	defer func() { d.missing = missing[:0] }()
+	last := -1
+	note := func(bx, by int) bool {
+		key := by*d.ntx + bx
+		if key == last {
+			return true
+		}
+		last = key
+		if d.cache.get(key) != nil {
+			return true
+		}
+		for _, k := range missing {
+			if k == key {
+				return true
+			}
+		}
+		missing = append(missing, key)
+		return len(missing) <= d.cache.cap/2
+	}
+	x0, dx, y0, dy := d.gt[0], d.gt[1], d.gt[3], d.gt[5]
+	hiC, hiR := d.fw-0.5, d.fh-0.5
+	for i, x := range xs {
+		fc := (x-x0)/dx - 0.5
+		fr := (ys[i]-y0)/dy - 0.5
+		if !(fc >= -0.5 && fc <= hiC && fr >= -0.5 && fr <= hiR) {
+			continue
+		}
+		var c0, c1, r0, r1 int
+		if d.info.Method == Nearest {
+			c0, r0 = min(int(fc+0.5), d.w-1), min(int(fr+0.5), d.h-1)
+			c1, r1 = c0, r0
+		} else {
+			c0 = min(max(int(math.Floor(fc)), 0), d.w-2)
+			r0 = min(max(int(math.Floor(fr)), 0), d.h-2)
+			c1, r1 = c0+1, r0+1
+		}
+		bx0, bx1, by0, by1 := c0/d.tw, c1/d.tw, r0/d.th, r1/d.th
+		ok := note(bx0, by0)
+		if bx1 != bx0 {
+			ok = ok && note(bx1, by0)
+		}
+		if by1 != by0 {
+			ok = ok && note(bx0, by1)
+			if bx1 != bx0 {
+				ok = ok && note(bx1, by1)
+			}
+		}
+		if !ok {
+			return nil // too many blocks for the cache: decode them lazily
+		}
+	}
+	if len(missing) < 2 {
+		return nil
+	}
+	if err := d.openReaders(); err != nil {
+		return nil // parallel decoding is an optimisation only
+	}
+
+	// Take the cache slots here, on this goroutine; the readers only fill
+	// them.
+	blocks := make([]*block, len(missing))
+	for i, key := range missing {
+		bx, by := key%d.ntx, key/d.ntx
+		x0, y0 := bx*d.tw, by*d.th
+		w, h := min(d.tw, d.w-x0), min(d.th, d.h-y0)
+		b := d.cache.slot(w * h)
+		b.key, b.x0, b.y0, b.w = key, x0, y0, w
+		blocks[i] = b
+	}
+	errs := make([]error, len(d.pool))
+	var wg sync.WaitGroup
+	for r := range d.pool {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			band := d.pool[r].band
+			for i := r; i < len(blocks); i += len(d.pool) {
+				b := blocks[i]
+				h := len(b.data) / b.w
+				if err := band.Read(b.x0, b.y0, b.data, b.w, h); err != nil {
+					errs[r] = fmt.Errorf("read DEM block at column %d, row %d: %w", b.x0, b.y0, err)
+					return
+				}
+			}
+		}()
+	}
+	wg.Wait()
+	if err := errors.Join(errs...); err != nil {
+		return err
+	}
+	for _, b := range blocks {
+		d.cache.add(b)
+	}
+	d.blocksRead += len(blocks)
+	return nil
+}
+
+// openReaders opens the extra GDAL handles for parallel decoding, once.
+// The first reader is the DEM's own handle.
+func (d *DEM) openReaders() error {
+	if d.pool != nil {
+		return nil
+	}
+	pool := []reader{{ds: d.ds, band: d.band}}
+	for len(pool) < d.readers {
+		ds, err := godal.Open(d.info.Path, godal.RasterOnly())
+		if err != nil {
+			for _, r := range pool[1:] {
+				r.ds.Close()
+			}
+			d.readers = 1 // do not try again
+			return err
+		}
+		pool = append(pool, reader{ds: ds, band: ds.Bands()[0]})
+	}
+	d.pool = pool
+	return nil
+}
+
+// closeReaders closes the extra handles.
+func (d *DEM) closeReaders() error {
+	var errs []error
+	for _, r := range d.pool[min(1, len(d.pool)):] {
+		errs = append(errs, r.ds.Close())
+	}
+	d.pool = nil
+	return errors.Join(errs...)
+}
