@@ -1,0 +1,538 @@
+package planner
+
+import (
+	"fmt"
+	"math"
+	"sort"
+	"strings"
+)
+
+// bound reasons: which constraint set an elevation bound at a station.
+const (
+	whyMaxCut = iota
+	whyMaxFill
+	whyFixed
+	whyMinWater
+	whyEnd
+	whyStart
+	whyCount
+)
+
+var whyNames = [whyCount]string{
+	"maximum cut depth", "maximum fill height", "fixed invert", "minimum water level", "end invert tie-in", "start invert",
+}
+
+// core is the discretised problem the dynamic programme solves. Bed
+// elevations are z(i, k, g) = z0 + k·step − grade[g]·(c[i] − c[0]): k is the
+// index of the reach's bed line on the step grid, constant along a reach.
+type core struct {
+	c, g     []float64 // chainage, ground (m)
+	z0, step float64
+	grades   []float64
+	tpl      []Template // per grade
+	heights  []float64
+	hSteps   []int
+	dropCost []float64
+	arrive   [][]int // [h][j]: first station a drop of height h at j lets the next drop sit at, -1: no drop there
+	costs    Costs
+	volume   VolumeMethod
+
+	zlo, zhi     [][]float64 // [g][i] bed elevation bounds (m)
+	loWhy, hiWhy [][]uint8   // [g][i] reason of each bound
+}
+
+// solution is the optimiser's plan in grid terms.
+type solution struct {
+	cost   float64
+	drops  []dropPick // in chainage order
+	grades []int      // grade index of each reach (len(drops)+1)
+	k      []int      // bed-line index of each reach
+	states int64      // station states evaluated
+}
+
+type dropPick struct {
+	station, height int
+}
+
+// slot holds drop candidates made at station j for one height: for each
+// target grade and bed-line index, the best cost so far minus the target's
+// running earthwork at j. They merge into the free states at the arrival
+// station, where the next drop may sit.
+type slot struct {
+	j, h  int
+	lo    []int       // per grade: first bed-line index held
+	vals  [][]float64 // per grade
+	gprev [][]uint8   // per grade: grade of the reach upstream of the drop
+}
+
+type arrivalRec struct {
+	j int32
+	h uint8
+}
+
+func ceilIdx(x float64) int  { return int(math.Ceil(x - 1e-7)) }
+func floorIdx(x float64) int { return int(math.Floor(x + 1e-7)) }
+
+// window returns the bed-line indices of grade g that satisfy the bounds at
+// station i.
+func (p *core) window(g, i int) (lo, hi int) {
+	s := p.grades[g]
+	d := p.c[i] - p.c[0]
+	lo = ceilIdx((p.zlo[g][i] - p.z0 + s*d) / p.step)
+	hi = floorIdx((p.zhi[g][i] - p.z0 + s*d) / p.step)
+	return lo, hi
+}
+
+func (p *core) bed(g, i, k int) float64 {
+	return p.z0 + float64(k)*p.step - p.grades[g]*(p.c[i]-p.c[0])
+}
+
+// segmentCost is the earthwork cost between stations i−1 and i of a bed line
+// with ends at depths d1, d2 below ground, areas (c1, f1) and (c2, f2).
+func (p *core) segmentCost(t *Template, l, d1, d2, c1, f1, c2, f2 float64) float64 {
+	if p.volume == Prismoidal {
+		cm, fm := t.Areas((d1 + d2) / 2)
+		return p.costs.Earthwork(PrismoidalVolume(l, c1, cm, c2), PrismoidalVolume(l, f1, fm, f2))
+	}
+	return p.costs.Earthwork(l*(c1+c2)/2, l*(f1+f2)/2)
+}
+
+// phaseOffsets groups grades whose bed lines are in step at station i: for
+// each grade, rep[g] is the first grade of its group and off[g] the index
+// shift with k_g = k_rep + off[g] at equal bed elevation.
+func (p *core) phaseOffsets(i int, rep, off []int) {
+	d := p.c[i] - p.c[0]
+	for g := range p.grades {
+		rep[g], off[g] = g, 0
+		for r := 0; r < g; r++ {
+			if rep[r] != r {
+				continue
+			}
+			m := (p.grades[g] - p.grades[r]) * d / p.step
+			if mr := math.Round(m); math.Abs(m-mr) < 1e-6 {
+				rep[g], off[g] = r, int(mr)
+				break
+			}
+		}
+	}
+}
+
+// solve runs the dynamic programme. It returns the least-cost plan or an
+// *InfeasibleError.
+func (p *core) solve() (*solution, error) {
+	n, G, H := len(p.c), len(p.grades), len(p.heights)
+	wlo := make([][]int, G)
+	whi := make([][]int, G)
+	kmin := make([]int, G)
+	kmax := make([]int, G)
+	for g := 0; g < G; g++ {
+		wlo[g] = make([]int, n)
+		whi[g] = make([]int, n)
+		kmin[g], kmax[g] = math.MaxInt, math.MinInt
+		for i := 0; i < n; i++ {
+			lo, hi := p.window(g, i)
+			if i == 0 { // the start is fixed at k = 0
+				if lo <= 0 && 0 <= hi {
+					lo, hi = 0, 0
+				} else {
+					lo, hi = 1, 0
+				}
+			}
+			wlo[g][i], whi[g][i] = lo, hi
+			if lo <= hi {
+				kmin[g] = min(kmin[g], lo)
+				kmax[g] = max(kmax[g], hi)
+			}
+		}
+		if kmin[g] > kmax[g] {
+			kmin[g], kmax[g] = 0, -1
+		}
+	}
+	// Per-grade state arrays over the bed-line index range.
+	ft := make([][]float64, G) // cost so far minus running earthwork of the bed line
+	pr := make([][]float64, G) // running earthwork of the bed line since it became feasible
+	ec := make([][]float64, G) // cut area at the previous station
+	ef := make([][]float64, G) // fill area at the previous station
+	since := make([][]int32, G)
+	inf := math.Inf(1)
+	for g := 0; g < G; g++ {
+		m := kmax[g] - kmin[g] + 1
+		ft[g] = make([]float64, m)
+		pr[g] = make([]float64, m)
+		ec[g] = make([]float64, m)
+		ef[g] = make([]float64, m)
+		since[g] = make([]int32, m)
+		for x := range ft[g] {
+			ft[g][x] = inf
+		}
+	}
+	// Decisions: one byte per state, 0 = no improving drop arrival here.
+	decOff := make([]int, n*G+1)
+	for i := 0; i < n; i++ {
+		for g := 0; g < G; g++ {
+			w := max(0, whi[g][i]-wlo[g][i]+1)
+			decOff[i*G+g+1] = decOff[i*G+g] + w
+		}
+	}
+	dec := make([]uint8, decOff[n*G])
+	arrivals := make([][]arrivalRec, n)
+	pending := make([][]*slot, n)
+	var free []*slot
+	newSlot := func(j, h int) *slot {
+		var s *slot
+		if k := len(free); k > 0 {
+			s, free = free[k-1], free[:k-1]
+		} else {
+			s = &slot{lo: make([]int, G), vals: make([][]float64, G), gprev: make([][]uint8, G)}
+		}
+		s.j, s.h = j, h
+		return s
+	}
+	killMask := make([]uint8, n)
+	var states int64
+
+	// Station 0.
+	for g := 0; g < G; g++ {
+		if wlo[g][0] > whi[g][0] {
+			continue
+		}
+		x := 0 - kmin[g]
+		ft[g][x], pr[g][x], since[g][x] = 0, 0, 0
+		ec[g][x], ef[g][x] = p.tpl[g].Areas(p.g[0] - p.z0)
+	}
+	live := false
+	for g := 0; g < G; g++ {
+		live = live || wlo[g][0] <= whi[g][0]
+	}
+	if !live {
+		return nil, p.infeasible(0, 0, killMaskStart(p))
+	}
+
+	rep := make([]int, G)
+	off := make([]int, G)
+	var bScratch []float64
+	var bArg []uint8
+	pendingLive := 0
+	lastLive := 0
+
+	for i := 1; i < n; i++ {
+		l := p.c[i] - p.c[i-1]
+		di := p.c[i] - p.c[0]
+		gi, gprevStation := p.g[i], p.g[i-1]
+		for g := 0; g < G; g++ {
+			olo, ohi := wlo[g][i-1], whi[g][i-1]
+			nlo, nhi := wlo[g][i], whi[g][i]
+			f, pp, cc, ff, sn := ft[g], pr[g], ec[g], ef[g], since[g]
+			km := kmin[g]
+			for k := olo; k <= ohi; k++ { // states that leave the window die
+				if k < nlo || k > nhi {
+					x := k - km
+					if f[x] < inf {
+						if k < nlo {
+							killMask[i] |= 1 << p.loWhy[g][i]
+						} else {
+							killMask[i] |= 1 << p.hiWhy[g][i]
+						}
+					}
+					f[x] = inf
+				}
+			}
+			t := &p.tpl[g]
+			s := p.grades[g]
+			for k := nlo; k <= nhi; k++ {
+				x := k - km
+				z := p.z0 + float64(k)*p.step - s*di
+				d := gi - z
+				ac, af := t.Areas(d)
+				if k >= olo && k <= ohi {
+					dprev := gprevStation - (z + s*l)
+					pp[x] += p.segmentCost(t, l, dprev, d, cc[x], ff[x], ac, af)
+				} else {
+					sn[x], pp[x], f[x] = int32(i), 0, inf
+				}
+				cc[x], ff[x] = ac, af
+			}
+			states += int64(max(0, nhi-nlo+1))
+		}
+		// Drop arrivals: the next drop may sit here.
+		for si, sl := range pending[i] {
+			if (si+1)*G > 255 {
+				return nil, fmt.Errorf("%w: too many drop heights × grades arriving at one station (%d × %d); use fewer", ErrInput, len(pending[i]), G)
+			}
+			arrivals[i] = append(arrivals[i], arrivalRec{j: int32(sl.j), h: uint8(sl.h)})
+			for g := 0; g < G; g++ {
+				vals := sl.vals[g]
+				if len(vals) == 0 {
+					continue
+				}
+				lo := max(sl.lo[g], wlo[g][i])
+				hi := min(sl.lo[g]+len(vals)-1, whi[g][i])
+				f, sn := ft[g], since[g]
+				km := kmin[g]
+				dbase := decOff[i*G+g] - wlo[g][i]
+				for k := lo; k <= hi; k++ {
+					v := vals[k-sl.lo[g]]
+					x := k - km
+					if v < f[x] && int(sn[x]) <= sl.j {
+						f[x] = v
+						dec[dbase+k] = uint8(1 + si*G + int(sl.gprev[g][k-sl.lo[g]]))
+					}
+				}
+			}
+			pendingLive--
+			free = append(free, sl)
+		}
+		pending[i] = nil
+
+		// Liveness.
+		any := false
+		for g := 0; g < G && !any; g++ {
+			f := ft[g]
+			for k := wlo[g][i]; k <= whi[g][i]; k++ {
+				if f[k-kmin[g]] < inf {
+					any = true
+					break
+				}
+			}
+		}
+		if any {
+			lastLive = i
+		} else if pendingLive == 0 {
+			return nil, p.infeasible(lastLive, i, killMask)
+		}
+		if !any || i == n-1 {
+			continue
+		}
+		// Drop candidates at station i.
+		dropHere := false
+		for h := 0; h < H; h++ {
+			dropHere = dropHere || p.arrive[h][i] >= 0
+		}
+		if !dropHere {
+			continue
+		}
+		p.phaseOffsets(i, rep, off)
+		for r := 0; r < G; r++ {
+			if rep[r] != r {
+				continue
+			}
+			blo, bhi := math.MaxInt, math.MinInt
+			for g := 0; g < G; g++ {
+				if rep[g] == r && wlo[g][i] <= whi[g][i] {
+					blo = min(blo, wlo[g][i]-off[g])
+					bhi = max(bhi, whi[g][i]-off[g])
+				}
+			}
+			if blo > bhi {
+				continue
+			}
+			m := bhi - blo + 1
+			if cap(bScratch) < m {
+				bScratch = make([]float64, m)
+				bArg = make([]uint8, m)
+			}
+			b, barg := bScratch[:m], bArg[:m]
+			for x := range b {
+				b[x] = inf
+			}
+			for g := 0; g < G; g++ {
+				if rep[g] != r {
+					continue
+				}
+				f, pp := ft[g], pr[g]
+				for k := wlo[g][i]; k <= whi[g][i]; k++ {
+					x := k - kmin[g]
+					if f[x] < inf {
+						v := f[x] + pp[x]
+						if y := k - off[g] - blo; v < b[y] {
+							b[y], barg[y] = v, uint8(g)
+						}
+					}
+				}
+			}
+			for h := 0; h < H; h++ {
+				a := p.arrive[h][i]
+				if a < 0 {
+					continue
+				}
+				// One slot per (station, height) holds every target grade;
+				// find or make it.
+				var sl *slot
+				for _, q := range pending[a] {
+					if q.j == i && q.h == h {
+						sl = q
+					}
+				}
+				fresh := sl == nil
+				if fresh {
+					sl = newSlot(i, h)
+					for g := 0; g < G; g++ {
+						sl.vals[g] = sl.vals[g][:0]
+						sl.gprev[g] = sl.gprev[g][:0]
+					}
+				}
+				dc := p.dropCost[h]
+				anyV := false
+				for g := 0; g < G; g++ {
+					if rep[g] != r || wlo[g][i] > whi[g][i] {
+						continue
+					}
+					lo, hi := wlo[g][i], whi[g][i]
+					sl.lo[g] = lo
+					vals := grow(sl.vals[g], hi-lo+1)
+					gp := growU8(sl.gprev[g], hi-lo+1)
+					pp := pr[g]
+					for k := lo; k <= hi; k++ {
+						v := inf
+						if y := k - off[g] + p.hSteps[h] - blo; y >= 0 && y < m && b[y] < inf {
+							v = b[y] + dc - pp[k-kmin[g]]
+							gp[k-lo] = barg[y]
+							anyV = true
+						}
+						vals[k-lo] = v
+					}
+					sl.vals[g], sl.gprev[g] = vals, gp
+				}
+				if fresh {
+					if anyV {
+						pending[a] = append(pending[a], sl)
+						pendingLive++
+					} else {
+						free = append(free, sl)
+					}
+				}
+			}
+		}
+	}
+
+	// Best end state.
+	best, bg, bk := inf, -1, 0
+	for g := 0; g < G; g++ {
+		for k := wlo[g][n-1]; k <= whi[g][n-1]; k++ {
+			x := k - kmin[g]
+			if v := ft[g][x] + pr[g][x]; v < best {
+				best, bg, bk = v, g, k
+			}
+		}
+	}
+	if bg < 0 {
+		return nil, p.infeasible(lastLive, n-1, killMask)
+	}
+	// Backtrack.
+	sol := &solution{cost: best, states: states}
+	t, g, k := n-1, bg, bk
+	var revDrops []dropPick
+	revGrades := []int{g}
+	revK := []int{k}
+	for t > 0 {
+		code := dec[decOff[t*G+g]+k-wlo[g][t]]
+		if code == 0 {
+			t--
+			continue
+		}
+		c := int(code) - 1
+		ar := arrivals[t][c/G]
+		gp := c % G
+		j, h := int(ar.j), int(ar.h)
+		m := (p.grades[gp] - p.grades[g]) * (p.c[j] - p.c[0]) / p.step
+		kp := k + p.hSteps[h] + int(math.Round(m))
+		revDrops = append(revDrops, dropPick{station: j, height: h})
+		t, g, k = j, gp, kp
+		revGrades = append(revGrades, g)
+		revK = append(revK, k)
+	}
+	if k != 0 {
+		return nil, fmt.Errorf("planner: internal error: backtrack ended at bed line %d, not the start", k)
+	}
+	for x := len(revDrops) - 1; x >= 0; x-- {
+		sol.drops = append(sol.drops, revDrops[x])
+	}
+	for x := len(revGrades) - 1; x >= 0; x-- {
+		sol.grades = append(sol.grades, revGrades[x])
+		sol.k = append(sol.k, revK[x])
+	}
+	return sol, nil
+}
+
+func grow(s []float64, n int) []float64 {
+	if cap(s) < n {
+		return make([]float64, n)
+	}
+	return s[:n]
+}
+
+func growU8(s []uint8, n int) []uint8 {
+	if cap(s) < n {
+		return make([]uint8, n)
+	}
+	return s[:n]
+}
+
+func killMaskStart(p *core) []uint8 {
+	m := make([]uint8, len(p.c))
+	for g := range p.grades {
+		m[0] |= 1<<p.loWhy[g][0] | 1<<p.hiWhy[g][0]
+	}
+	m[0] |= 1 << whyStart
+	return m
+}
+
+// InfeasibleError says that no profile meets every constraint on the
+// discretisation: Constraints name the binding ones, and the chainage range
+// (m) is where they bind.
+type InfeasibleError struct {
+	Constraints []string
+	From, To    float64 // chainage range, m
+	Hint        string
+}
+
+func (e *InfeasibleError) Error() string {
+	var b strings.Builder
+	fmt.Fprintf(&b, "planner: no feasible profile: %s cannot be met", strings.Join(e.Constraints, " and "))
+	if e.From == e.To {
+		fmt.Fprintf(&b, " at chainage %.2f m", e.From)
+	} else {
+		fmt.Fprintf(&b, " between chainage %.2f m and %.2f m", e.From, e.To)
+	}
+	if e.Hint != "" {
+		b.WriteString("; " + e.Hint)
+	}
+	return b.String()
+}
+
+func (p *core) infeasible(lastLive, i int, killMask []uint8) error {
+	var mask uint8
+	start := i
+	for s := i; s >= 0 && s > lastLive-1; s-- {
+		if killMask[s] != 0 {
+			mask |= killMask[s]
+			start = s
+		}
+	}
+	if mask == 0 {
+		// Nothing was killed by a bound: every state failed the spacing
+		// of drops.
+		return &InfeasibleError{Constraints: []string{"drop spacing"}, From: p.c[lastLive], To: p.c[i],
+			Hint: "drops cannot be spaced by their basin, transition and minimum reach here"}
+	}
+	// Extend the range back over the run of stations where the same bounds
+	// were already cutting states off.
+	for start > 0 && killMask[start-1]&mask != 0 {
+		start--
+	}
+	var names []string
+	for w := 0; w < whyCount; w++ {
+		if mask&(1<<w) != 0 {
+			names = append(names, whyNames[w])
+		}
+	}
+	sort.Strings(names)
+	e := &InfeasibleError{Constraints: names, From: p.c[start], To: p.c[i]}
+	switch {
+	case mask&(1<<whyMaxFill) != 0 && mask&(1<<whyMaxCut) == 0:
+		e.Hint = "the ground falls faster than the steepest grade and the allowed drops at their minimum spacing can follow; allow higher drops, more fill or a shorter minimum reach"
+	case mask&(1<<whyMaxCut) != 0 && mask&(1<<whyMaxFill) == 0:
+		e.Hint = "the ground rises above the bed by more than the cut allowed; allow deeper cut, a flatter grade or a higher start"
+	}
+	return e
+}
