@@ -32,7 +32,7 @@ func FormatStation(chainageM float64, us bool) string {
 	if us {
 		v, station, width = chainageM/FootM, 100, 2
 	}
-	if math.IsNaN(v) || math.IsInf(v, 0) || math.Abs(v) >= maxLabelUnits {
+	if !labelled(chainageM, us) {
 		return strconv.FormatFloat(chainageM, 'f', -1, 64)
 	}
 	c := int64(math.Round(math.Abs(v) * 100)) // hundredths of the unit
@@ -87,16 +87,26 @@ func ParseStation(s string, us bool) (float64, error) {
 		return bad(err.Error())
 	}
 	v := w*station + r
-	if v >= maxLabelUnits {
-		return bad("the chainage is out of range")
-	}
 	if neg {
 		v = -v
 	}
 	if us {
-		return v * FootM, nil
+		v *= FootM
+	}
+	if !labelled(v, us) {
+		return bad("the chainage is out of range")
 	}
 	return v, nil
+}
+
+// labelled reports whether FormatStation writes chainageM in trade
+// notation: finite, and below maxLabelUnits once rounded to hundredths.
+func labelled(chainageM float64, us bool) bool {
+	v := chainageM
+	if us {
+		v /= FootM
+	}
+	return math.Round(math.Abs(v)*100) < maxLabelUnits*100 // false for NaN and ±Inf
 }
 
 func allDigits(s string) bool {

@@ -187,14 +187,15 @@ func StationLine(line orb.LineString, unitToMetre, spacing, start float64) ([]St
 		}
 		out = append(out, s)
 	}
+	// az[i] is the azimuth of the segment from vertex i to vertex i+1.
+	az := make([]float64, len(pts)-1)
+	for i := range az {
+		az[i] = azimuth(pts[i], pts[i+1])
+	}
 	vertex := func(i int) Station {
-		a, b := pts[i], pts[min(i+1, len(pts)-1)]
-		if i == len(pts)-1 {
-			a, b = pts[i-1], pts[i]
-		}
 		p := pts[i]
 		return Station{Chainage: start + dist[i], X: p[0], Y: p[1], WorkX: p[0], WorkY: p[1],
-			Azimuth: azimuth(a, b), Vertex: true}
+			Azimuth: az[min(i, len(az)-1)], Vertex: true}
 	}
 
 	emit(vertex(0), false)
@@ -211,7 +212,7 @@ func StationLine(line orb.LineString, unitToMetre, spacing, start float64) ([]St
 		a, b := pts[seg-1], pts[seg]
 		t := (d - dist[seg-1]) / (dist[seg] - dist[seg-1])
 		x, y := a[0]+t*(b[0]-a[0]), a[1]+t*(b[1]-a[1])
-		emit(Station{Chainage: start + d, X: x, Y: y, WorkX: x, WorkY: y, Azimuth: azimuth(a, b)}, false)
+		emit(Station{Chainage: start + d, X: x, Y: y, WorkX: x, WorkY: y, Azimuth: az[seg-1]}, false)
 	}
 	for ; seg < len(pts); seg++ {
 		emit(vertex(seg), seg == len(pts)-1)

@@ -1,0 +1,112 @@
+package alignment_test
+
+import (
+	"fmt"
+
+	"canalstep/alignment"
+
+	"github.com/paulmach/orb"
+)
+
+// Station an L-shaped alignment (300 m east, then 400 m north) every 250 m
+// from chainage 1+000: spacing stations at 1+250 and 1+500, the corner
+// vertex at 1+300, the end at 1+700.
+func ExampleStationLine() {
+	line := orb.LineString{{500000, 4000000}, {500300, 4000000}, {500300, 4000400}}
+	stations, err := alignment.StationLine(line, 1, 250, 1000)
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	for _, s := range stations {
+		fmt.Printf("%s  %8.2f m  E %.2f  N %.2f  vertex=%v\n",
+			alignment.FormatStation(s.Chainage, false), s.Chainage, s.X, s.Y, s.Vertex)
+	}
+	// Output:
+	// 1+000.00   1000.00 m  E 500000.00  N 4000000.00  vertex=true
+	// 1+250.00   1250.00 m  E 500250.00  N 4000000.00  vertex=false
+	// 1+300.00   1300.00 m  E 500300.00  N 4000000.00  vertex=true
+	// 1+500.00   1500.00 m  E 500300.00  N 4000200.00  vertex=false
+	// 1+700.00   1700.00 m  E 500300.00  N 4000400.00  vertex=true
+}
+
+// In a CRS measured in international feet, chainage is still metres:
+// pass the unit's length in metres. 100-ft stations in US labels.
+func ExampleStationLine_feet() {
+	line := orb.LineString{{6000000, 2000000}, {6000250, 2000000}}
+	stations, _ := alignment.StationLine(line, alignment.FootM, 100*alignment.FootM, 0)
+	for _, s := range stations {
+		fmt.Printf("%s  %s  %s\n", alignment.FormatStation(s.Chainage, true),
+			alignment.FormatChainage(s.Chainage, true), alignment.FormatChainage(s.Chainage, false))
+	}
+	// Output:
+	// 0+00.00  0.00 ft  0.00 m
+	// 1+00.00  100.00 ft  30.48 m
+	// 2+00.00  200.00 ft  60.96 m
+	// 2+50.00  250.00 ft  76.20 m
+}
+
+func ExampleFormatStation() {
+	fmt.Println(alignment.FormatStation(1250, false))  // metres
+	fmt.Println(alignment.FormatStation(381, true))    // 381 m = 1250 ft
+	fmt.Println(alignment.FormatStation(-12.3, false)) // before the origin
+	// Output:
+	// 1+250.00
+	// 12+50.00
+	// -0+012.30
+}
+
+func ExampleParseStation() {
+	m, err := alignment.ParseStation("12+50.00", true)
+	fmt.Printf("%.2f m %v\n", m, err)
+	_, err = alignment.ParseStation("1+25", false)
+	fmt.Println(err)
+	// Output:
+	// 381.00 m <nil>
+	// station "1+25": the part after "+" must start with exactly 3 digits; want kilometres+metres such as 1+250.00
+}
+
+func ExampleRead() {
+	data := []byte(`{"type":"FeatureCollection","features":[
+	  {"type":"Feature","properties":{"name":"Main canal"},
+	   "geometry":{"type":"LineString","coordinates":[[15.00,36.00],[15.01,36.00],[15.01,36.00],[15.02,36.01]]}},
+	  {"type":"Feature","properties":{"name":"Main canal"},
+	   "geometry":{"type":"MultiLineString","coordinates":[[[15.00,36.02],[15.01,36.02]],[[15.01,36.02],[15.02,36.03]]]}},
+	  {"type":"Feature","properties":{"name":"head regulator"},"geometry":{"type":"Point","coordinates":[15.00,36.00]}}
+	]}`)
+	as, err := alignment.Read(data)
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	for _, a := range as {
+		fmt.Printf("%d %q feature %d, %d vertices, folder %s\n", a.Index, a.Name, a.Feature, len(a.Line), alignment.SafeName(a.Name))
+	}
+	_, err = alignment.Read([]byte(`{"type":"Point","coordinates":[15,36]}`))
+	fmt.Println(err)
+	// Output:
+	// 0 "Main canal" feature 1, 3 vertices, folder Main_canal
+	// 1 "Main canal-2" feature 2, 3 vertices, folder Main_canal-2
+	// no LineString or MultiLineString geometry found
+}
+
+func ExampleRanges() {
+	line := orb.LineString{{0, 0}, {100, 0}}
+	stations, _ := alignment.StationLine(line, 1, 10, 1200)
+	// Say stations 2 to 4 and 9 fell on nodata.
+	fmt.Println("no ground data at", alignment.Ranges(stations, []int{2, 3, 4, 9}, false))
+	// Output:
+	// no ground data at chainage 1+220.00 to 1+240.00 and 1+290.00
+}
+
+func ExampleUTMZoneEPSG() {
+	fmt.Println(alignment.UTMZoneEPSG(15, 36), alignment.UTMZoneEPSG(-58.4, -34.6), alignment.UTMZoneEPSG(5, 60))
+	// Output:
+	// 32633 32721 32632
+}
+
+func ExampleSafeName() {
+	fmt.Println(alignment.SafeName("Lateral 3/B (upper)"), alignment.SafeName("../secret"), alignment.SafeName(".."))
+	// Output:
+	// Lateral_3_B_upper secret alignment
+}
