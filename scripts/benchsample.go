@@ -18,6 +18,7 @@ import (
 	"os"
 	"strconv"
 	"strings"
+	"syscall"
 	"time"
 
 	"canalstep/terrain"
@@ -38,23 +39,24 @@ func main() {
 		defer f.Close()
 		in = f
 	}
+	c0 := cpu()
 	t0 := time.Now()
 	xs, ys, err := readPoints(in)
 	if err != nil {
 		log.Fatal(err)
 	}
-	t1 := time.Now()
+	t1, c1 := time.Now(), cpu()
 	dem, err := terrain.Open(flag.Arg(0), terrain.Options{})
 	if err != nil {
 		log.Fatal(err)
 	}
 	defer dem.Close()
-	t2 := time.Now()
+	t2, c2 := time.Now(), cpu()
 	z := make([]float64, len(xs))
 	if err := dem.Sample(xs, ys, z); err != nil {
 		log.Fatal(err)
 	}
-	t3 := time.Now()
+	t3, c3 := time.Now(), cpu()
 	if *outPath != "" {
 		f, err := os.Create(*outPath)
 		if err != nil {
@@ -72,9 +74,16 @@ func main() {
 		}
 	}
 	in2 := dem.Info()
-	fmt.Fprintf(os.Stderr, "benchsample: %d points; read points %.1f ms, open %.1f ms, sample %.1f ms (%.0f ns/point); %d of %d blocks decoded (%d×%d cells each)\n",
-		len(xs), ms(t1.Sub(t0)), ms(t2.Sub(t1)), ms(t3.Sub(t2)), float64(t3.Sub(t2).Nanoseconds())/float64(len(xs)),
+	fmt.Fprintf(os.Stderr, "benchsample: %d points; wall (CPU) ms: before main %.1f, read points %.1f (%.1f), open %.1f (%.1f), sample %.1f (%.1f) = %.0f ns/point; %d of %d blocks decoded (%d×%d cells each)\n",
+		len(xs), c0, ms(t1.Sub(t0)), c1-c0, ms(t2.Sub(t1)), c2-c1, ms(t3.Sub(t2)), c3-c2, float64(t3.Sub(t2).Nanoseconds())/float64(len(xs)),
 		dem.BlocksRead(), ceilDiv(in2.Width, in2.CacheBlockX)*ceilDiv(in2.Height, in2.CacheBlockY), in2.CacheBlockX, in2.CacheBlockY)
+}
+
+// cpu returns the process's user+system CPU time so far in ms.
+func cpu() float64 {
+	var ru syscall.Rusage
+	syscall.Getrusage(syscall.RUSAGE_SELF, &ru)
+	return float64(ru.Utime.Nano()+ru.Stime.Nano()) / 1e6
 }
 
 func ms(d time.Duration) float64 { return float64(d.Microseconds()) / 1000 }

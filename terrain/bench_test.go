@@ -85,8 +85,13 @@ func BenchmarkSampleLine(b *testing.B) {
 // BenchmarkSampleLineCold: Open, 40,001 samples and Close per iteration, so
 // every touched block is decoded again each time.
 func BenchmarkSampleLineCold(b *testing.B) {
-	path := mustBenchDEM(b)
 	xs, ys := benchLine(40001)
+	benchCold(b, mustBenchDEM(b), xs, ys)
+}
+
+// benchCold runs Open, Sample and Close per iteration and reports the time
+// per point and the blocks decoded per iteration.
+func benchCold(b *testing.B, path string, xs, ys []float64) {
 	out := make([]float64, len(xs))
 	blocks := 0
 	b.ReportAllocs()
@@ -100,6 +105,11 @@ func BenchmarkSampleLineCold(b *testing.B) {
 		}
 		blocks = d.BlocksRead()
 		d.Close()
+	}
+	for i, v := range out {
+		if math.IsNaN(v) {
+			b.Fatalf("point %d sampled NaN", i)
+		}
 	}
 	reportPerPoint(b, len(xs))
 	b.ReportMetric(float64(blocks), "blocks/op")
@@ -143,27 +153,7 @@ func BenchmarkBenchRoute(b *testing.B) {
 		b.Skip("set CANALSTEP_BENCH_DIR to the folder scripts/bench.sh wrote")
 	}
 	xs, ys := readPoints(b, filepath.Join(dir, "points.txt"))
-	out := make([]float64, len(xs))
-	blocks := 0
-	b.ReportAllocs()
-	for b.Loop() {
-		d, err := terrain.Open(filepath.Join(dir, "dem.tif"), terrain.Options{})
-		if err != nil {
-			b.Fatal(err)
-		}
-		if err := d.Sample(xs, ys, out); err != nil {
-			b.Fatal(err)
-		}
-		blocks = d.BlocksRead()
-		d.Close()
-	}
-	for i, v := range out {
-		if math.IsNaN(v) {
-			b.Fatalf("point %d sampled NaN", i)
-		}
-	}
-	reportPerPoint(b, len(xs))
-	b.ReportMetric(float64(blocks), "blocks/op")
+	benchCold(b, filepath.Join(dir, "dem.tif"), xs, ys)
 	b.ReportMetric(float64(len(xs)), "points")
 }
 

@@ -55,14 +55,15 @@ func CRSInfo(def string) (CRS, error) {
 		return CRS{}, err
 	}
 	defer sr.Close()
-	return describe(sr)
-}
-
-func describe(sr *godal.SpatialRef) (CRS, error) {
 	wkt, err := sr.WKT()
 	if err != nil {
-		return CRS{}, fmt.Errorf("export CRS as WKT: %w", err)
+		return CRS{}, fmt.Errorf("export CRS %q as WKT: %w", shorten(def), err)
 	}
+	return describe(sr, wkt), nil
+}
+
+// describe describes sr, whose WKT export is wkt.
+func describe(sr *godal.SpatialRef, wkt string) CRS {
 	c := CRS{WKT: wkt, Geographic: sr.Geographic(), Projected: sr.Projected()}
 	if c.Projected {
 		// Searches the WKT1 tree, so it also finds the horizontal part of a
@@ -74,7 +75,7 @@ func describe(sr *godal.SpatialRef) (CRS, error) {
 		}
 	}
 	c.EPSG = epsgOf(sr, wkt)
-	return c, nil
+	return c
 }
 
 // epsgOf returns the EPSG code of sr, identifying it from its definition

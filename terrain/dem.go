@@ -185,10 +185,7 @@ func newDEM(ds *godal.Dataset, path, zu string, zf float64, opt Options) (*DEM, 
 	if wkt == "" {
 		return nil, ErrNoCRS
 	}
-	crs, err := CRSInfo(wkt)
-	if err != nil {
-		return nil, fmt.Errorf("read CRS: %w", err)
-	}
+	crs := describe(ds.SpatialRef(), wkt) // borrowed: not closed
 	band := ds.Bands()[0]
 	bs := band.Structure()
 	nd, hasND := band.NoData()
