@@ -80,12 +80,19 @@ type object struct {
 // features are skipped. A MultiLineString is accepted only when each part
 // starts where the previous part ends (within 1e-8 degree for lon/lat
 // coordinates, 1e-3 CRS units otherwise); its parts are joined into one line.
-// Repeated consecutive vertices are dropped.
+// Repeated consecutive vertices are dropped. A leading UTF-8 byte order
+// mark is ignored.
 //
 // Only the top-level legacy "crs" member is read; see Alignment.CRS.
 // Duplicate names get a suffix -2, -3, ... in file order, so that each
 // alignment's SafeName is unique even on a case-insensitive file system.
 func Read(data []byte) ([]Alignment, error) {
+	// RFC 8259 §8.1 lets a parser ignore a byte order mark; some Windows
+	// tools write one.
+	data = bytes.TrimPrefix(data, []byte("\xef\xbb\xbf"))
+	if len(bytes.TrimSpace(data)) == 0 {
+		return nil, fmt.Errorf("%w: the file is empty", ErrNotJSON)
+	}
 	if !json.Valid(data) {
 		return nil, notJSON(data)
 	}

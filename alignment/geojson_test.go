@@ -122,6 +122,17 @@ func TestRead(t *testing.T) {
 			errHas:  "line 1, column 1",
 		},
 		{
+			name:    "empty file",
+			in:      " \n",
+			wantErr: ErrNotJSON,
+			errHas:  "alignment file is not valid JSON: the file is empty",
+		},
+		{
+			name: "UTF-8 byte order mark ignored (RFC 8259 §8.1)",
+			in:   "\xef\xbb\xbf" + `{"type":"LineString","coordinates":[[0,0],[1,1]]}`,
+			want: []want{{"alignment-1", 1, "", orb.LineString{{0, 0}, {1, 1}}}},
+		},
+		{
 			name:    "JSON array at the top",
 			in:      `[[0,0],[1,1]]`,
 			wantErr: ErrNotGeoJSON,

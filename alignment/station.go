@@ -71,8 +71,8 @@ const MaxStations = 5_000_000
 const MaxStart = 1e9
 
 // absorbTolerance is how close (m of chainage) a spacing station may come
-// to a vertex before the vertex takes its place, so no two stakes are set
-// within 1 mm of each other (common practice, no source).
+// to a vertex before the vertex takes its place, so a spacing stake is never
+// set within 1 mm of a vertex stake (common practice, no source).
 const absorbTolerance = 1e-3
 
 // Errors returned by the stationing functions, wrapped with detail.
