@@ -6,6 +6,7 @@ import (
 	"math"
 	"os"
 
+	"github.com/paulmach/orb"
 	flag "github.com/spf13/pflag"
 
 	"canalstep/alignment"
@@ -160,8 +161,9 @@ func loadProfile(dem *terrain.DEM, info terrain.Info, a alignment.Alignment, crs
 const lonLatCRS = "OGC:CRS84"
 
 // framesFor builds the coordinate frames of one alignment. Chainage is
-// measured in the DEM's CRS when it is projected, else in the UTM zone of the
-// alignment's midpoint. The returned function releases the transforms.
+// measured in the DEM's CRS when it is projected, else in a transverse
+// Mercator projection centred on the alignment, whose grid distances match
+// the ellipsoid's to a few parts per million over a canal's extent. The returned function releases the transforms.
 func framesFor(info terrain.Info, a alignment.Alignment, crsFlag string) (alignment.Frames, func(), error) {
 	var f alignment.Frames
 	var open []*terrain.Transform
@@ -200,21 +202,28 @@ func framesFor(info terrain.Info, a alignment.Alignment, crsFlag string) (alignm
 	work := info.CRSWKT
 	f.WorkUnitToMetre = info.LinearUnitToMetre
 	if info.Geographic {
-		// Station in the UTM zone of the alignment's midpoint, sample back in lon/lat.
+		// Station in a transverse Mercator projection centred on the
+		// alignment (scale 1 on its central meridian), sample back in lon/lat.
 		toLL, err := newT(in, lonLatCRS)
 		if err != nil {
 			return fail(err)
 		}
-		mid := a.Line[len(a.Line)/2]
-		xs, ys := []float64{mid[0]}, []float64{mid[1]}
+		ll := append(orb.LineString(nil), a.Line...)
+		xs, ys := make([]float64, len(ll)), make([]float64, len(ll))
+		for i, p := range ll {
+			xs[i], ys[i] = p[0], p[1]
+		}
 		if err := toLL.Transform(xs, ys); err != nil {
 			return fail(fmt.Errorf("locate the alignment in lon/lat: %w", err))
 		}
-		zone := alignment.UTMZoneEPSG(xs[0], ys[0])
-		if zone == 0 {
-			return fail(fmt.Errorf("cannot choose a UTM zone at lon %.6f lat %.6f", xs[0], ys[0]))
+		for i := range ll {
+			ll[i] = orb.Point{xs[i], ys[i]}
 		}
-		work = fmt.Sprintf("EPSG:%d", zone)
+		def, ok := alignment.LocalTransverseMercator(ll)
+		if !ok {
+			return fail(errors.New("cannot set up a local projection for the alignment; reproject the DEM to a projected CRS"))
+		}
+		work = def
 		f.WorkUnitToMetre = 1
 		if f.WorkToDEM, err = newT(work, info.CRSWKT); err != nil {
 			return fail(err)
