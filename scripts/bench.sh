@@ -48,7 +48,7 @@ bench_profile() {
 	local have_profile=0
 	if bin/canalstep profile --help >/dev/null 2>&1; then have_profile=1; fi
 
-	echo "== profile: $(wc -l <"$pts") points on a $(gdalinfo "$dem" | awk '/^Size is/ {print $3 $4}') DEM"
+	echo "== profile: $(wc -l <"$pts") points on a $(gdalinfo "$dem" | awk '/^Size is/ {sub(",", "", $3); print $3 "×" $4}') DEM"
 	# Same numbers from both bilinear implementations first.
 	bin/benchsample -o "$BENCH_OUT/z_terrain.txt" "$dem" "$pts"
 	"$PY" scripts/bench_rasterio.py -o "$BENCH_OUT/z_python.txt" "$dem" "$pts"
@@ -56,6 +56,19 @@ bench_profile() {
 a, b = np.loadtxt(sys.argv[1]), np.loadtxt(sys.argv[2])
 print("terrain vs python: max |diff| %.6f m over %d points" % (np.nanmax(np.abs(a - b)), len(a)))' \
 		"$BENCH_OUT/z_terrain.txt" "$BENCH_OUT/z_python.txt"
+
+	if [ "$have_profile" = 1 ]; then
+		bin/canalstep profile --dem "$dem" --alignment "$route" --spacing 1 --out "$prof_out" >/dev/null
+		"$PY" -c 'import csv, sys, numpy as np
+rows = list(csv.DictReader(open(sys.argv[1])))
+g = np.array([float(r["ground"]) for r in rows])
+p = np.loadtxt(sys.argv[2])
+if len(g) != len(p):
+    print("canalstep: %d stations, python %d points: not compared" % (len(g), len(p)))
+else:
+    print("canalstep ground.csv vs python: max |diff| %.4f m over %d stations (csv has 3 decimals)" % (np.nanmax(np.abs(g - p)), len(g)))' \
+			"$(ls "$prof_out"/*/ground.csv | head -1)" "$BENCH_OUT/z_python.txt"
+	fi
 
 	local cmds=(
 		-n terrain "bin/benchsample $dem $pts"
@@ -75,12 +88,16 @@ print("terrain vs python: max |diff| %.6f m over %d points" % (np.nanmax(np.abs(
 import json, sys
 res = {r["command"]: r for r in json.load(open(sys.argv[1]))["results"]}
 g, p = res["gdallocinfo"]["mean"], res["python"]["mean"]
+cpu = lambda r: r["user"] + r["system"]
+gc, pc = cpu(res["gdallocinfo"]), cpu(res["python"])
+print("  %-12s %18s %9s %8s   %7s %9s %8s" % ("", "wall ms ± sd", "×gdalloc", "×python", "CPU ms", "×gdalloc", "×python"))
 for name in ("canalstep", "terrain", "gdallocinfo", "python"):
     if name in res:
         r = res[name]
-        print("  %-12s %7.1f ms ± %4.1f   %5.2f× gdallocationinfo   %5.3f× python"
-              % (name, r["mean"] * 1e3, r["stddev"] * 1e3, r["mean"] / g, r["mean"] / p))
-print("  goals: canalstep ≤ 0.5× gdallocationinfo (while bilinear), ≤ 0.2× python")
+        print("  %-12s %10.1f ± %5.1f %9.2f %8.3f   %7.0f %9.2f %8.3f"
+              % (name, r["mean"] * 1e3, r["stddev"] * 1e3, r["mean"] / g, r["mean"] / p,
+                 cpu(r) * 1e3, cpu(r) / gc, cpu(r) / pc))
+print("  CPU = user + system time. goals: canalstep wall ≤ 0.5× gdallocationinfo (while bilinear), ≤ 0.2× python")
 PYEOF
 
 	echo "== profile: peak RSS (/usr/bin/time -v; goal < 100 MB)"

@@ -398,3 +398,26 @@ func TestConcurrentSample(t *testing.T) {
 		t.Error(err)
 	}
 }
+
+// TestSouthUp checks a raster stored bottom row first (positive cell
+// height in the geotransform), which GDAL and gdallocationinfo accept: the
+// plane z = 10 + 2·col + 3·row (row counted from the southern edge) is read
+// back at cell centres and between them.
+func TestSouthUp(t *testing.T) {
+	const w, h = 6, 5
+	g := planar(w, h, 10, 2, 3)
+	g.GeoTransform = [6]float64{fxX0, fxCell, 0, fxY0, 0, fxCell} // y grows with row
+	d := mustOpen(t, mustWriteDEM(t, t.TempDir(), "southup.tif", g), terrain.Options{})
+	xs := []float64{fxX0 + 5, fxX0 + 25, fxX0 + 40}
+	ys := []float64{fxY0 + 5, fxY0 + 15, fxY0 + 30}
+	want := []float64{10, 10 + 2*2 + 3*1, 10 + 2*3.5 + 3*2.5} // fractional (col, row) from the first centre
+	got := make([]float64, len(xs))
+	if err := d.Sample(xs, ys, got); err != nil {
+		t.Fatal(err)
+	}
+	for i := range got {
+		if math.Abs(got[i]-want[i]) > 1e-9 { // exact plane, float64 rounding only
+			t.Errorf("point %d: got %v, want %v", i, got[i], want[i])
+		}
+	}
+}
