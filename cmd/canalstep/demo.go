@@ -30,14 +30,17 @@ func runDemo(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	in := filepath.Join(*out, "inputs")
 	dem := filepath.Join(in, "dem.tif")
 	aln := filepath.Join(in, "canals.geojson")
+	design := filepath.Join(in, "design.toml")
 	fmt.Fprintf(stdout, "== %s (fictional), terrain seed %d\n", terrain.DemoSchemeName, *seed)
-	if err := writeDemoInputs(dem, aln, *seed); err != nil {
+	if err := writeDemoInputs(dem, aln, design, *seed); err != nil {
 		return fmt.Errorf("demo inputs: %w", err)
 	}
-	fmt.Fprintf(stdout, "DEM: %s\nalignments: %s\n", dem, aln)
+	fmt.Fprintf(stdout, "DEM: %s\nalignments: %s\ndesign: %s\n", dem, aln, design)
 
 	steps := [][]string{
 		{"profile", "--dem", dem, "--alignment", aln, "--spacing", "10", "--out", *out},
+		{"plan", "--dem", dem, "--alignment", aln, "--design", design, "--out", *out},
+		{"compare", "--dem", dem, "--alignment", aln, "--design", design, "--alternatives", "1.0;1.5;2.0;1.0,1.5,2.0", "--out", *out},
 	}
 	for _, s := range steps {
 		if err := ctx.Err(); err != nil {
@@ -52,9 +55,34 @@ func runDemo(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	return nil
 }
 
-// writeDemoInputs writes the synthetic DEM and the demo alignments, the
-// latter as RFC 7946 GeoJSON in WGS 84 lon/lat.
-func writeDemoInputs(demPath, alnPath string, seed uint64) error {
+// demoDesign is the design file of the demo scheme: a small earth canal on
+// the fictional fan. The numbers are the demo's own, chosen to be plausible
+// for a loam canal (permissible velocity within the range of Fortier and
+// Scobey's table, Chow 1959 Table 7-3; n for earth canals, Chow 1959
+// Table 5-6); unit costs are illustrative.
+const demoDesign = `# canalstep design file for the fictional demo scheme (SI units).
+# Keys are the flag names of 'canalstep plan --help' with _ for -.
+flow = 2.5            # design discharge, m3/s
+bottom_width = 2.0    # m
+side_slope = 1.5      # H:V
+roughness = 0.025     # Manning n, earth canal
+max_velocity = 0.9    # m/s, permissible (non-eroding)
+min_velocity = 0.45   # m/s, non-silting
+drop_heights = [0.5, 1.0, 1.5]
+spacing = 10          # m between stations
+max_cut = 5.0         # m
+max_fill = 2.0        # m
+bank_top_width = 3.0  # m, maintenance track on each bank
+outer_slope = 2.0     # H:V
+cost_cut = 4.0        # per m3
+cost_fill = 6.0       # per m3 compacted
+cost_drop = 15000     # per drop structure
+cost_drop_height = 10000  # per m of drop height
+`
+
+// writeDemoInputs writes the synthetic DEM, the demo alignments (as RFC
+// 7946 GeoJSON in WGS 84 lon/lat) and the demo design file.
+func writeDemoInputs(demPath, alnPath, designPath string, seed uint64) error {
 	if err := os.MkdirAll(filepath.Dir(demPath), 0o755); err != nil {
 		return err
 	}
@@ -77,7 +105,13 @@ func writeDemoInputs(demPath, alnPath string, seed uint64) error {
 		}
 		fc.add(a.Name, xs, ys)
 	}
-	return report.WriteFileAtomic(alnPath, fc.write)
+	if err := report.WriteFileAtomic(alnPath, fc.write); err != nil {
+		return err
+	}
+	return report.WriteFileAtomic(designPath, func(w io.Writer) error {
+		_, err := io.WriteString(w, demoDesign)
+		return err
+	})
 }
 
 // geoJSONLines builds a FeatureCollection of named LineStrings in lon/lat

@@ -22,6 +22,10 @@ func commands() []command {
 	return []command{
 		// Each subcommand adds one line here.
 		{"profile", "ground long section along each alignment (ground.csv, ground.png)", runProfile},
+		{"section", "uniform flow, velocity-limited slopes and freeboard of one canal section", runSection},
+		{"drop", "straight drop with stilling basin: Rand geometry, jump, basin, outlet check", runDrop},
+		{"plan", "least-cost drop placement on the real ground, beside the even-spacing method", runPlan},
+		{"compare", "plan several drop-height sets and compare earthwork and cost", runCompare},
 		{"demo", "build the fictional demo scheme on generated terrain and run canalstep on it", runDemo},
 	}
 }
