@@ -27,3 +27,24 @@ func parseUnits(s string) (report.Units, error) {
 	}
 	return report.SI, usagef("--units must be si or us, got %q", s)
 }
+
+// CfsM3 is one cubic foot per second in m³/s (exact by definition).
+const CfsM3 = 0.028316846592
+
+// unitFlow is the size of one input discharge unit in m³/s.
+func unitFlow(u report.Units) float64 {
+	if u == report.US {
+		return CfsM3
+	}
+	return 1
+}
+
+// flowUnit and velocityUnit are the symbols of the output units.
+func flowUnit(u report.Units) string {
+	if u == report.US {
+		return "cfs"
+	}
+	return "m³/s"
+}
+
+func velocityUnit(u report.Units) string { return u.LengthUnit() + "/s" }

@@ -167,6 +167,10 @@ type DropInput struct {
 	// MaxApproachFroude is the approach Froude number above which the
 	// upstream flow counts as near critical; 0 means NearCriticalFroude.
 	MaxApproachFroude float64
+	// CrestRaise and Depression fix the crest height above the upstream bed
+	// and the basin-floor depression below the downstream bed (m), to check
+	// an existing or chosen structure; nil means design them.
+	CrestRaise, Depression *float64
 }
 
 func (in DropInput) upstream() Channel {
@@ -222,7 +226,18 @@ type Drop struct {
 	JumpLoss   float64 // E1 − E2 across a Belanger jump from y1, m
 	EnergyLoss float64 // head lost from the upstream to the downstream canal, m (= Δ when both canals match)
 
+	// Warnings are about the structure: approach flow, crest. The outlet
+	// check at the design flow carries its own; AllWarnings joins both.
+	// Messages quote only dimensionless numbers, so they read the same in
+	// any unit system.
 	Warnings []string
+	Outlet   OutletCheck // the outlet check at the design flow
+}
+
+// AllWarnings returns the structure's warnings followed by those of the
+// outlet check at the design flow.
+func (d Drop) AllWarnings() []string {
+	return append(append([]string(nil), d.Warnings...), d.Outlet.Warnings...)
 }
 
 // OutletCheck is the tailwater check of a drop at one discharge.
@@ -264,6 +279,11 @@ func DesignDrop(c Consts, in DropInput) (Drop, error) {
 	case !(in.TransitionLoss >= 0 && in.TransitionLoss <= 1):
 		return Drop{}, fmt.Errorf("%w: outlet loss coefficient %g must be between 0 and 1", ErrInvalid, in.TransitionLoss)
 	}
+	for _, v := range []*float64{in.CrestRaise, in.Depression} {
+		if v != nil && !(*v >= 0 && !math.IsInf(*v, 1)) {
+			return Drop{}, fmt.Errorf("%w: a fixed crest raise or basin depression (%g m) must be zero or positive", ErrInvalid, *v)
+		}
+	}
 	for _, f := range in.HoldFlows {
 		if !positive(f) {
 			return Drop{}, fmt.Errorf("%w: check discharge %g m³/s must be positive", ErrInvalid, f)
@@ -295,22 +315,36 @@ func DesignDrop(c Consts, in DropInput) (Drop, error) {
 	d.ControlWidth = ControlWidth(c, in.Q, eUp)
 	ycCrest := math.Cbrt(c.alpha() * d.UnitDischarge * d.UnitDischarge / c.G)
 	d.CrestRaise = CrestRaise(eUp, ycCrest)
-	if d.CrestRaise < 0 {
+	if in.CrestRaise != nil {
+		if math.Abs(*in.CrestRaise-d.CrestRaise) > 0.01*eUp {
+			effect, than := "draws down (M2)", "lower"
+			if *in.CrestRaise > d.CrestRaise {
+				effect, than = "backs up (M1)", "higher"
+			}
+			d.Warnings = append(d.Warnings, fmt.Sprintf("the fixed crest raise is %s than the height that holds the upstream normal depth: the upstream water surface %s",
+				than, effect))
+		}
+		d.CrestRaise = *in.CrestRaise
+	} else if d.CrestRaise < 0 {
 		// Critical flow on a bed-level crest this narrow needs more energy
 		// than the canal has: the crest chokes the flow and backs water up.
-		d.Warnings = append(d.Warnings, fmt.Sprintf("crest of width %.3f m is narrower than the control width %.3f m: even at bed level it backs the upstream water up (M1) by about %.3f m of energy, eating into the freeboard; widen the crest or use a control notch",
-			in.CrestWidth, d.ControlWidth, -d.CrestRaise))
+		d.Warnings = append(d.Warnings, fmt.Sprintf("the crest is narrower than the control width (%.2f × it): even at bed level it backs the upstream water up (M1), eating into the freeboard; widen the crest to the control width or use a control notch",
+			in.CrestWidth/d.ControlWidth))
 		d.CrestRaise = 0
 	}
 
 	// Basin-floor depression: the largest any checked flow needs.
-	ratio := orDefault(in.HoldRatio, DefaultSmallMarginRatio)
-	for _, q := range append([]float64{in.Q}, in.HoldFlows...) {
-		ds, err := requiredDepression(c, in, d.CrestRaise, q, ratio)
-		if err != nil {
-			return Drop{}, fmt.Errorf("basin depression at %g m³/s: %w", q, err)
+	if in.Depression != nil {
+		d.BasinDepression = *in.Depression
+	} else {
+		ratio := orDefault(in.HoldRatio, DefaultSmallMarginRatio)
+		for _, q := range append([]float64{in.Q}, in.HoldFlows...) {
+			ds, err := requiredDepression(c, in, d.CrestRaise, q, ratio)
+			if err != nil {
+				return Drop{}, fmt.Errorf("basin depression at %g m³/s: %w", q, err)
+			}
+			d.BasinDepression = math.Max(d.BasinDepression, ds)
 		}
-		d.BasinDepression = math.Max(d.BasinDepression, ds)
 	}
 	d.DropHeight = in.Height + d.CrestRaise + d.BasinDepression
 
@@ -339,7 +373,7 @@ func DesignDrop(c Consts, in DropInput) (Drop, error) {
 		return Drop{}, err
 	}
 	d.TailwaterDepth, d.TailwaterRatio, d.JumpState = chk.TailwaterDepth, chk.TailwaterRatio, chk.JumpState
-	d.Warnings = append(d.Warnings, chk.Warnings...)
+	d.Outlet = chk
 	return d, nil
 }
 
@@ -362,6 +396,8 @@ func CheckOutlet(c Consts, d Drop, in DropInput, q float64) (OutletCheck, error)
 	if err := in.Downstream.Validate(); err != nil {
 		return OutletCheck{}, fmt.Errorf("downstream canal: %w", err)
 	}
+	// The drop's own geometry governs; in supplies the canal and the margins.
+	in.CrestWidth, in.Height = d.CrestWidth, d.BedFall
 	o := OutletCheck{Q: q}
 	h := d.BedFall + d.CrestRaise + d.BasinDepression
 	b := d.CrestWidth
@@ -388,44 +424,36 @@ func CheckOutlet(c Consts, d Drop, in DropInput, q float64) (OutletCheck, error)
 	default:
 		o.JumpState = InBasin
 	}
-	if o.JumpState == SweptOut {
-		o.RequiredDepression, err = requiredDepression(c, in, d.CrestRaise, q, 1)
-		if err != nil {
-			return OutletCheck{}, err
-		}
-	} else {
-		o.RequiredDepression = d.BasinDepression
-		if r, err := requiredDepression(c, in, d.CrestRaise, q, 1); err == nil {
-			o.RequiredDepression = r
-		}
+	if o.RequiredDepression, err = requiredDepression(c, in, d.CrestRaise, q, 1); err != nil {
+		return OutletCheck{}, err
 	}
 
 	switch o.JumpState {
 	case SweptOut:
-		msg := fmt.Sprintf("jump swept out at %.4g m³/s: tailwater %.3f m is below the %.3f m the jump needs; lower the basin floor to %.3f m below the downstream bed, widen the basin, or use an SAF-type basin",
-			q, o.TailwaterDepth, o.SequentDepth, o.RequiredDepression)
+		msg := fmt.Sprintf("jump swept out: the tailwater is only %.2f × the sequent depth the jump needs; lower the basin floor to the required depression, widen the basin, or use an SAF-type basin",
+			o.TailwaterRatio)
 		if critical {
 			msg += " (the downstream canal cannot even hold subcritical flow at the basin end)"
 		}
 		o.Warnings = append(o.Warnings, msg)
 	case Drowned:
-		o.Warnings = append(o.Warnings, fmt.Sprintf("drowned jump at %.4g m³/s (tailwater %.2f × the sequent depth): a submerged roller is a drowning hazard; check the nappe landing against the basin length", q, o.TailwaterRatio))
+		o.Warnings = append(o.Warnings, fmt.Sprintf("drowned jump (tailwater %.2f × the sequent depth): a submerged roller is a drowning hazard; check the nappe landing against the basin length", o.TailwaterRatio))
 	default:
 		if o.TailwaterRatio < small-slack {
-			o.Warnings = append(o.Warnings, fmt.Sprintf("small tailwater margin at %.4g m³/s: tailwater is %.3f × the sequent depth (below %.2f)", q, o.TailwaterRatio, small))
+			o.Warnings = append(o.Warnings, fmt.Sprintf("small tailwater margin: tailwater is %.3f × the sequent depth (below %.2f)", o.TailwaterRatio, small))
 		}
 	}
 	if o.JumpState != SweptOut && o.ToeFroude >= 2.5 && o.ToeFroude < 4.5 {
-		o.Warnings = append(o.Warnings, fmt.Sprintf("oscillating jump at %.4g m³/s (F1 = %.2f): waves travel downstream; consider a USBR Type IV basin or wave suppressors", q, o.ToeFroude))
+		o.Warnings = append(o.Warnings, fmt.Sprintf("oscillating jump (F1 = %.2f): waves travel downstream; consider a USBR Type IV basin or wave suppressors", o.ToeFroude))
 	}
 	if x := g.CriticalDepth / h; x < RandMinYcOverH || x > RandMaxYcOverH {
-		o.Warnings = append(o.Warnings, fmt.Sprintf("yc/h = %.3f at %.4g m³/s is outside the range of Rand's relations (%.3f–%.0f): results are extrapolated", x, q, RandMinYcOverH, RandMaxYcOverH))
+		o.Warnings = append(o.Warnings, fmt.Sprintf("yc/h = %.3f is outside the range of Rand's relations (%.3f–%.0f): results are extrapolated", x, RandMinYcOverH, RandMaxYcOverH))
 	}
 	// Tailwater above the crest beyond 0.7·dc (UFC 3-230-16FA, drop
 	// structures chapter: the basin works with higher tailwater as long as
 	// the depth above the weir does not exceed 0.7·dc).
 	if above := o.TailwaterDepth - h; above > 0.7*g.CriticalDepth {
-		o.Warnings = append(o.Warnings, fmt.Sprintf("tailwater stands %.3f m above the crest at %.4g m³/s (more than 0.7·yc): the crest is submerged and the upstream level rises", above, q))
+		o.Warnings = append(o.Warnings, fmt.Sprintf("the tailwater stands %.2f·yc above the crest (more than 0.7·yc): the crest is submerged and the upstream level rises", above/g.CriticalDepth))
 	}
 	return o, nil
 }

@@ -374,3 +374,36 @@ func TestDesignDropNarrowCrest(t *testing.T) {
 		t.Errorf("crest raise %.4f, warnings %q", d.CrestRaise, d.Warnings)
 	}
 }
+
+// TestDesignDropFixed: a fixed crest and floor are kept and checked; with
+// no depression the T4-2 jump is swept out and the check names the
+// depression it needs (0.475 m at Co = 0, reference sheet §4.3 [C], ±2e-3 m).
+func TestDesignDropFixed(t *testing.T) {
+	zero, p := 0.0, 0.3
+	d, err := DesignDrop(SI(), DropInput{Q: 10, CrestWidth: 3, Height: 1.2, Downstream: si1, CrestRaise: &p, Depression: &zero})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if d.CrestRaise != 0.3 || d.BasinDepression != 0 || d.DropHeight != 1.5 {
+		t.Errorf("fixed geometry not kept: p %g d_s %g h %g", d.CrestRaise, d.BasinDepression, d.DropHeight)
+	}
+	if !strings.Contains(strings.Join(d.Warnings, "\n"), "backs up") {
+		t.Errorf("no backwater warning for a crest above the inlet-control height: %q", d.Warnings)
+	}
+	p = 0.0153
+	d, err = DesignDrop(SI(), DropInput{Q: 10, CrestWidth: 3, Height: 1.2, Downstream: si1, CrestRaise: &p, Depression: &zero})
+	if err != nil {
+		t.Fatal(err)
+	}
+	o, err := CheckOutlet(SI(), d, DropInput{Q: 10, CrestWidth: 3, Height: 1.2, Downstream: si1}, 10)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if d.JumpState != SweptOut || o.JumpState != SweptOut || math.Abs(o.RequiredDepression-0.475) > 2e-3 {
+		t.Errorf("state %s/%s, required depression %.4f m (sheet 0.475)", d.JumpState, o.JumpState, o.RequiredDepression)
+	}
+	neg := -1.0
+	if _, err := DesignDrop(SI(), DropInput{Q: 10, CrestWidth: 3, Height: 1.2, Downstream: si1, Depression: &neg}); !errors.Is(err, ErrInvalid) {
+		t.Errorf("negative depression: err = %v", err)
+	}
+}

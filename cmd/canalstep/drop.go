@@ -1,0 +1,268 @@
+package main
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"strconv"
+	"strings"
+	"text/tabwriter"
+
+	"canalstep/planner/hydraulics"
+	"canalstep/report"
+)
+
+// parseFlows reads a comma-separated list of discharges as fractions of the
+// design flow ("0.25,0.5,1"). Every item must be a finite positive number.
+func parseFlows(s string) ([]float64, error) {
+	if strings.TrimSpace(s) == "" {
+		return nil, usagef("--flows is empty; give fractions of the design flow such as 0.25,0.5,1")
+	}
+	parts := strings.Split(s, ",")
+	out := make([]float64, 0, len(parts))
+	for _, p := range parts {
+		p = strings.TrimSpace(p)
+		v, err := strconv.ParseFloat(p, 64)
+		if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
+			return nil, usagef("--flows: %q is not a number; give fractions of the design flow such as 0.25,0.5,1", p)
+		}
+		if v <= 0 {
+			return nil, usagef("--flows: %g is not a positive fraction of the design flow", v)
+		}
+		out = append(out, v)
+	}
+	return out, nil
+}
+
+// dropFlowResult is the outlet check at one discharge.
+type dropFlowResult struct {
+	Fraction           sig6     `json:"fraction"`
+	Flow               sig6     `json:"flow"`
+	DownstreamDepth    sig6     `json:"downstream_depth"`
+	TailwaterDepth     sig6     `json:"tailwater_depth"`
+	SequentDepth       sig6     `json:"sequent_depth"`
+	TailwaterRatio     sig6     `json:"tailwater_ratio"`
+	Margin             sig6     `json:"margin"`
+	JumpState          string   `json:"jump_state"`
+	ToeFroude          sig6     `json:"toe_froude"`
+	RequiredDepression sig6     `json:"required_depression"`
+	Warnings           []string `json:"warnings"`
+}
+
+// dropResult is the JSON output of `canalstep drop`, in the units of
+// --units (lengths m or ft, discharge m³/s or cfs).
+type dropResult struct {
+	Units             string           `json:"units"`
+	LengthUnit        string           `json:"length_unit"`
+	FlowUnit          string           `json:"flow_unit"`
+	Flow              sig6             `json:"flow"`
+	CrestWidth        sig6             `json:"crest_width"`
+	BedFall           sig6             `json:"bed_fall"`
+	Transition        string           `json:"transition"`
+	OutletLoss        sig6             `json:"outlet_loss_coefficient"`
+	UpstreamDepth     sig6             `json:"upstream_depth"`
+	DownstreamDepth   sig6             `json:"downstream_depth"`
+	CrestRaise        sig6             `json:"crest_raise"`
+	ControlWidth      sig6             `json:"control_width"`
+	BasinDepression   sig6             `json:"basin_depression"`
+	DropHeight        sig6             `json:"drop_height"`
+	DropNumber        sig6             `json:"drop_number"`
+	CriticalDepth     sig6             `json:"critical_depth"`
+	BrinkDepth        sig6             `json:"brink_depth"`
+	ImpactLength      sig6             `json:"impact_length"`
+	PoolDepth         sig6             `json:"pool_depth"`
+	ToeDepth          sig6             `json:"toe_depth"`
+	ToeFroude         sig6             `json:"toe_froude"`
+	JumpType          string           `json:"jump_type"`
+	SequentDepth      sig6             `json:"sequent_depth"`
+	BelangerSequent   sig6             `json:"belanger_sequent_depth"`
+	JumpLength        sig6             `json:"jump_length"`
+	BasinLength       sig6             `json:"basin_length"`
+	EndSill           sig6             `json:"end_sill"`
+	SAFBasinLength    sig6             `json:"saf_basin_length"`
+	SAFMinTailwater   sig6             `json:"saf_min_tailwater"`
+	TailwaterDepth    sig6             `json:"tailwater_depth"`
+	JumpState         string           `json:"jump_state"`
+	FallLoss          sig6             `json:"fall_loss"`
+	JumpLoss          sig6             `json:"jump_loss"`
+	EnergyLoss        sig6             `json:"energy_loss"`
+	DissipatedPowerKW sig6             `json:"dissipated_power_kw"`
+	Flows             []dropFlowResult `json:"flows"`
+	Warnings          []string         `json:"warnings"` // about the structure; each flow has its own
+	SafetyNotice      string           `json:"safety_notice"`
+}
+
+// runDrop implements `canalstep drop`: a straight drop with its stilling
+// basin, designed at the design flow and checked at a list of flows.
+func runDrop(_ context.Context, args []string, stdout, _ io.Writer) error {
+	fs := newFlagSet("drop", stdout)
+	flow := fs.Float64("flow", 0, "design discharge (m³/s, or cfs with --units us)")
+	width := fs.Float64("width", 0, "width of the crest and of the rectangular basin (m or ft); the canal bed width is a common choice")
+	height := fs.Float64("height", 0, "bed fall at the drop, upstream bed to downstream bed (m or ft)")
+	var cf canalFlags
+	cf.register(fs, "canal (the same above and below the drop)")
+	transition := fs.String("transition", "none", "outlet transition type for the loss coefficient Co: none (0, conservative for sweep-out), warped, cylinder-quadrant, simplified-straight, straight-line, square-ended (Chow 1959 ch. 17 after Hinds 1928)")
+	flowsFlag := fs.String("flows", "0.25,0.5,1", "flows to check, as fractions of the design flow; the basin floor is set to hold the jump at all of them")
+	holdRatio := fs.Float64("hold-ratio", hydraulics.DefaultSmallMarginRatio, "tailwater / required sequent depth the basin floor is designed for (1.10: common practice)")
+	crestRaise := fs.Float64("crest-raise", 0, "fix the crest height above the upstream bed (m or ft) instead of designing it")
+	depression := fs.Float64("depression", 0, "fix the basin floor depression below the downstream bed (m or ft) instead of designing it")
+	var of outputFlags
+	u, ok, err := of.parseCommand(fs, args, stdout,
+		"canalstep drop --flow Q --width B --height H --bottom-width B --side-slope Z --roughness N --slope S [--transition TYPE] [--flows 0.25,0.5,1] [--units si|us] [--json]",
+		"A straight (vertical) drop with a plain stilling basin: Rand (1955) geometry, hydraulic jump,\nbasin length, crest raise to hold the upstream normal depth, basin floor depression, and the\ntailwater check (swept_out, in_basin, drowned) at each flow.")
+	if !ok {
+		return err
+	}
+	if err := requireFlags(fs, "flow", "width", "height", "bottom-width", "side-slope", "roughness", "slope"); err != nil {
+		return err
+	}
+	if err := checkNumbers(fs,
+		append([]string{"flow", "width", "height", "hold-ratio"}, canalPositive...),
+		append([]string{"crest-raise", "depression"}, canalNonNegative...)); err != nil {
+		return err
+	}
+	tr, err := hydraulics.LookupTransition(*transition)
+	if err != nil {
+		return usagef("--transition: %v", err)
+	}
+	fractions, err := parseFlows(*flowsFlag)
+	if err != nil {
+		return err
+	}
+
+	lm := unitLength(u)
+	c := hydraulics.SI()
+	q := *flow * unitFlow(u)
+	in := hydraulics.DropInput{
+		Q: q, CrestWidth: *width * lm, Height: *height * lm,
+		Downstream: cf.channel(lm), TransitionLoss: tr.Outlet, HoldRatio: *holdRatio,
+	}
+	for _, f := range fractions {
+		if f != 1 {
+			in.HoldFlows = append(in.HoldFlows, f*q)
+		}
+	}
+	if fs.Changed("crest-raise") {
+		p := *crestRaise * lm
+		in.CrestRaise = &p
+	}
+	if fs.Changed("depression") {
+		ds := *depression * lm
+		in.Depression = &ds
+	}
+	d, err := hydraulics.DesignDrop(c, in)
+	if err != nil {
+		if errors.Is(err, hydraulics.ErrInvalid) {
+			return usageError{fmt.Errorf("drop: %w", err)}
+		}
+		return fmt.Errorf("drop: %w", err)
+	}
+	res := dropResult{
+		Units: unitsName(u), LengthUnit: u.LengthUnit(), FlowUnit: flowUnit(u),
+		Flow: sig6(*flow), CrestWidth: sig6(*width), BedFall: sig6(*height),
+		Transition: tr.Name, OutletLoss: sig6(tr.Outlet),
+		UpstreamDepth: sig6(d.UpstreamDepth / lm), DownstreamDepth: sig6(d.DownstreamDepth / lm),
+		CrestRaise: sig6(d.CrestRaise / lm), ControlWidth: sig6(d.ControlWidth / lm),
+		BasinDepression: sig6(d.BasinDepression / lm), DropHeight: sig6(d.DropHeight / lm),
+		DropNumber: sig6(d.DropNumber), CriticalDepth: sig6(d.CriticalDepth / lm), BrinkDepth: sig6(d.BrinkDepth / lm),
+		ImpactLength: sig6(d.ImpactLength / lm), PoolDepth: sig6(d.PoolDepth / lm), ToeDepth: sig6(d.ToeDepth / lm),
+		ToeFroude: sig6(d.ToeFroude), JumpType: d.JumpType,
+		SequentDepth: sig6(d.SequentDepth / lm), BelangerSequent: sig6(d.BelangerDepth / lm),
+		JumpLength: sig6(d.JumpLength / lm), BasinLength: sig6(d.BasinLength / lm), EndSill: sig6(d.EndSill / lm),
+		SAFBasinLength: sig6(d.SAFBasinLength / lm), SAFMinTailwater: sig6(d.SAFMinTailwater / lm),
+		TailwaterDepth: sig6(d.TailwaterDepth / lm), JumpState: string(d.JumpState),
+		FallLoss: sig6(d.FallLoss / lm), JumpLoss: sig6(d.JumpLoss / lm), EnergyLoss: sig6(d.EnergyLoss / lm),
+		// P = ρ·g·Q·ΔH with ρ = 1000 kg/m³ (reference sheet §3.4).
+		DissipatedPowerKW: sig6(1000 * c.G * q * d.EnergyLoss / 1000),
+		Warnings:          append([]string{}, d.Warnings...),
+		SafetyNotice:      report.SafetyNotice,
+	}
+	for _, f := range fractions {
+		o, err := hydraulics.CheckOutlet(c, d, in, f*q)
+		if err != nil {
+			return fmt.Errorf("drop: outlet check at %g × design flow: %w", f, err)
+		}
+		res.Flows = append(res.Flows, dropFlowResult{
+			Fraction: sig6(f), Flow: sig6(f * *flow),
+			DownstreamDepth: sig6(o.DownstreamDepth / lm), TailwaterDepth: sig6(o.TailwaterDepth / lm),
+			SequentDepth: sig6(o.SequentDepth / lm), TailwaterRatio: sig6(o.TailwaterRatio), Margin: sig6(o.Margin / lm),
+			JumpState: string(o.JumpState), ToeFroude: sig6(o.ToeFroude), RequiredDepression: sig6(o.RequiredDepression / lm),
+			Warnings: append([]string{}, o.Warnings...),
+		})
+	}
+	if of.asJSON {
+		return writeJSON(stdout, res)
+	}
+	return printDrop(stdout, res, u)
+}
+
+func printDrop(w io.Writer, r dropResult, u report.Units) error {
+	L, Q := u.LengthUnit(), flowUnit(u)
+	fmt.Fprintf(w, "Straight drop: %.4g %s over a %.3f %s bed fall, crest and basin %.3f %s wide (%s units)\n",
+		float64(r.Flow), Q, float64(r.BedFall), L, float64(r.CrestWidth), L, strings.ToUpper(r.Units))
+	sections := []struct {
+		title string
+		rows  func(t *table)
+	}{
+		{"Canal and inlet control", func(t *table) {
+			t.add("upstream normal depth", "%.3f %s", float64(r.UpstreamDepth), L)
+			t.add("downstream normal depth", "%.3f %s", float64(r.DownstreamDepth), L)
+			t.add("crest raise above upstream bed", "%.3f %s", float64(r.CrestRaise), L)
+			t.add("control width at bed level", "%.3f %s", float64(r.ControlWidth), L)
+		}},
+		{"Drop (Rand 1955)", func(t *table) {
+			t.add("drop height, crest to basin floor", "%.3f %s", float64(r.DropHeight), L)
+			t.add("drop number D_N", "%.4f", float64(r.DropNumber))
+			t.add("critical depth on the crest", "%.3f %s", float64(r.CriticalDepth), L)
+			t.add("brink depth (0.715 yc)", "%.3f %s", float64(r.BrinkDepth), L)
+			t.add("impact length, wall to toe", "%.3f %s", float64(r.ImpactLength), L)
+			t.add("pool depth", "%.3f %s", float64(r.PoolDepth), L)
+			t.add("toe depth y1", "%.3f %s", float64(r.ToeDepth), L)
+			t.add("toe Froude number F1", "%.2f (%s jump)", float64(r.ToeFroude), r.JumpType)
+			t.add("required sequent depth y2", "%.3f %s (Belanger from y1: %.3f %s)", float64(r.SequentDepth), L, float64(r.BelangerSequent), L)
+		}},
+		{"Stilling basin (plain, horizontal floor)", func(t *table) {
+			t.add("floor depression below downstream bed", "%.3f %s", float64(r.BasinDepression), L)
+			t.add("jump length 6.9 (y2 - y1)", "%.3f %s", float64(r.JumpLength), L)
+			t.add("basin length", "%.3f %s", float64(r.BasinLength), L)
+			t.add("end sill height (0.4 yc)", "%.3f %s", float64(r.EndSill), L)
+			t.add("SAF basin alternative: length", "%.3f %s, tailwater at least %.3f %s", float64(r.SAFBasinLength), L, float64(r.SAFMinTailwater), L)
+			t.add("tailwater at design flow", "%.3f %s (%s)", float64(r.TailwaterDepth), L, r.JumpState)
+		}},
+		{"Energy", func(t *table) {
+			t.add("lost in the fall and pool", "%.3f %s", float64(r.FallLoss), L)
+			t.add("lost in the jump", "%.3f %s", float64(r.JumpLoss), L)
+			t.add("head loss canal to canal", "%.3f %s", float64(r.EnergyLoss), L)
+			t.add("power dissipated", "%.1f kW", float64(r.DissipatedPowerKW))
+		}},
+	}
+	var t table
+	for _, s := range sections {
+		t.heading(s.title)
+		s.rows(&t)
+	}
+	if err := t.write(w); err != nil {
+		return err
+	}
+	fmt.Fprintf(w, "Outlet check (transition %s, Co = %.2f)\n", r.Transition, float64(r.OutletLoss))
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintf(tw, "  flow (%s)\ttailwater (%s)\tneeds y2 (%s)\tTW/y2\tmargin (%s)\tdepression needed (%s)\tstate\t\n", Q, L, L, L, L)
+	for _, f := range r.Flows {
+		fmt.Fprintf(tw, "  %.4g\t%.3f\t%.3f\t%.3f\t%.3f\t%.3f\t%s\t\n", float64(f.Flow), float64(f.TailwaterDepth), float64(f.SequentDepth),
+			float64(f.TailwaterRatio), float64(f.Margin), float64(f.RequiredDepression), f.JumpState)
+	}
+	if err := tw.Flush(); err != nil {
+		return err
+	}
+	warnings := append([]string(nil), r.Warnings...)
+	for _, f := range r.Flows {
+		for _, s := range f.Warnings {
+			warnings = append(warnings, fmt.Sprintf("at %.4g %s: %s", float64(f.Flow), Q, s))
+		}
+	}
+	writeWarnings(w, warnings)
+	fmt.Fprintf(w, "\n%s\n", report.SafetyNotice)
+	return nil
+}

@@ -1,0 +1,405 @@
+package main
+
+import (
+	"context"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"strconv"
+	"strings"
+	"unicode/utf8"
+
+	flag "github.com/spf13/pflag"
+
+	"canalstep/planner/hydraulics"
+	"canalstep/report"
+)
+
+// canalFlags are the flags that describe a trapezoidal canal reach, in the
+// units of --units (lengths in m or ft).
+type canalFlags struct {
+	bottomWidth, sideSlope, roughness, slope float64
+}
+
+func (c *canalFlags) register(fs *flag.FlagSet, what string) {
+	fs.Float64Var(&c.bottomWidth, "bottom-width", 0, "bed width of the "+what+" (m, or ft with --units us)")
+	fs.Float64Var(&c.sideSlope, "side-slope", 0, "side slope of the "+what+", horizontal per vertical (0 = rectangle)")
+	fs.Float64Var(&c.roughness, "roughness", 0, "Manning n of the "+what+" (e.g. 0.015 concrete, 0.025 earth; Chow 1959 Table 5-6)")
+	fs.Float64Var(&c.slope, "slope", 0, "bed slope of the "+what+", m/m")
+}
+
+// channel converts the flags to an SI channel; lengthM is one input length
+// unit in metres.
+func (c canalFlags) channel(lengthM float64) hydraulics.Channel {
+	return hydraulics.Channel{
+		Section: hydraulics.Section{BottomWidth: c.bottomWidth * lengthM, SideSlope: c.sideSlope},
+		N:       c.roughness, Slope: c.slope,
+	}
+}
+
+// outputFlags are the --units and --json flags of a command that prints
+// results.
+type outputFlags struct {
+	units  string
+	asJSON bool
+}
+
+// parseCommand registers --units and --json, sets the help text (usage line,
+// a paragraph about the command, then the flags), parses args and the units.
+// ok is false when the command should stop (help shown, or err).
+func (o *outputFlags) parseCommand(fs *flag.FlagSet, args []string, stdout io.Writer, usageLine, about string) (u report.Units, ok bool, err error) {
+	fs.StringVar(&o.units, "units", "si", "units of input and output: si (m, m³/s) or us (ft, cfs)")
+	fs.BoolVar(&o.asJSON, "json", false, "print JSON instead of a table")
+	fs.Usage = func() {
+		fmt.Fprintf(stdout, "Usage: %s\n\n%s\n\nFlags:\n", usageLine, about)
+		fs.PrintDefaults()
+	}
+	if ok, err := parseFlags(fs, args); !ok {
+		return u, false, err
+	}
+	u, err = parseUnits(o.units)
+	return u, err == nil, err
+}
+
+// requireFlags returns a usage error naming the first flag of names that
+// was not given.
+func requireFlags(fs *flag.FlagSet, names ...string) error {
+	for _, n := range names {
+		if !fs.Changed(n) {
+			return usagef("%s: missing --%s (see 'canalstep %s --help')", fs.Name(), n, fs.Name())
+		}
+	}
+	return nil
+}
+
+// checkNumber returns a usage error when v is not finite, or not positive
+// (allowZero: negative).
+func checkNumber(name string, v float64, allowZero bool) error {
+	switch {
+	case math.IsNaN(v) || math.IsInf(v, 0):
+		return usagef("--%s must be a finite number, got %g", name, v)
+	case allowZero && v < 0:
+		return usagef("--%s must be zero or positive, got %g", name, v)
+	case !allowZero && v <= 0:
+		return usagef("--%s must be positive, got %g", name, v)
+	}
+	return nil
+}
+
+// checkNumbers validates the float flags that were given: those named in
+// positive must be above zero, those in nonNegative zero or above.
+func checkNumbers(fs *flag.FlagSet, positive, nonNegative []string) error {
+	for i, names := range [][]string{positive, nonNegative} {
+		for _, name := range names {
+			if !fs.Changed(name) {
+				continue
+			}
+			v, err := fs.GetFloat64(name)
+			if err != nil {
+				return err
+			}
+			if err := checkNumber(name, v, i == 1); err != nil {
+				return err
+			}
+		}
+	}
+	return nil
+}
+
+// canalPositive and canalNonNegative name the canal flags for checkNumbers.
+var canalPositive, canalNonNegative = []string{"bottom-width", "roughness", "slope"}, []string{"side-slope"}
+
+// sig6 is a float64 that JSON-encodes with six significant figures, so that
+// golden files do not depend on the last bits of a platform's arithmetic.
+type sig6 float64
+
+func (n sig6) MarshalJSON() ([]byte, error) {
+	f := float64(n)
+	if math.IsNaN(f) || math.IsInf(f, 0) {
+		return nil, fmt.Errorf("cannot encode %g in JSON", f)
+	}
+	return strconv.AppendFloat(nil, f, 'g', 6, 64), nil
+}
+
+func sig6Ptr(f float64) *sig6 { n := sig6(f); return &n }
+
+// sectionResult is the JSON output of `canalstep section`, in the units of
+// --units (lengths m or ft, discharge m³/s or cfs, velocity m/s or ft/s).
+type sectionResult struct {
+	Units           string   `json:"units"`
+	LengthUnit      string   `json:"length_unit"`
+	FlowUnit        string   `json:"flow_unit"`
+	Flow            sig6     `json:"flow"`
+	BottomWidth     sig6     `json:"bottom_width"`
+	SideSlope       sig6     `json:"side_slope"`
+	Roughness       sig6     `json:"roughness"`
+	Slope           sig6     `json:"slope"`
+	MaxVelocity     *sig6    `json:"max_velocity,omitempty"`
+	MinVelocity     *sig6    `json:"min_velocity,omitempty"`
+	MaxSlope        *sig6    `json:"max_slope,omitempty"`
+	MinSlope        *sig6    `json:"min_slope,omitempty"`
+	NormalDepth     sig6     `json:"normal_depth"`
+	CriticalDepth   sig6     `json:"critical_depth"`
+	Velocity        sig6     `json:"velocity"`
+	Froude          sig6     `json:"froude"`
+	Regime          string   `json:"regime"`
+	Area            sig6     `json:"area"`
+	WettedPerimeter sig6     `json:"wetted_perimeter"`
+	TopWidth        sig6     `json:"top_width"`
+	HydraulicRadius sig6     `json:"hydraulic_radius"`
+	HydraulicDepth  sig6     `json:"hydraulic_depth"`
+	SpecificEnergy  sig6     `json:"specific_energy"`
+	Freeboard       sig6     `json:"freeboard"`
+	FreeboardRule   string   `json:"freeboard_rule"`
+	BankHeight      sig6     `json:"bank_height"`
+	Warnings        []string `json:"warnings"`
+}
+
+// runSection implements `canalstep section`: uniform flow in one canal
+// section, on a given slope or on the steepest slope a velocity limit allows.
+func runSection(_ context.Context, args []string, stdout, _ io.Writer) error {
+	fs := newFlagSet("section", stdout)
+	var cf canalFlags
+	flow := fs.Float64("flow", 0, "design discharge (m³/s, or cfs with --units us)")
+	cf.register(fs, "canal")
+	maxV := fs.Float64("max-velocity", 0, "permissible (non-erosive) mean velocity; replaces --slope: the design slope is the steepest that keeps V at or below it (m/s or ft/s; e.g. Fortier & Scobey 1926)")
+	minV := fs.Float64("min-velocity", 0, "non-silting mean velocity (m/s or ft/s); gives min_slope, or a warning with --slope")
+	kennedy := fs.Float64("kennedy-m", 0, "use Kennedy's non-silting velocity 0.55·m·y^0.64 (SI) with critical velocity ratio m instead of --min-velocity")
+	maxFroude := fs.Float64("max-froude", hydraulics.NearCriticalFroude, "warn when the Froude number exceeds this (0.86: Clark County RFCD drainage manual §1100, via a secondary source)")
+	fbFixed := fs.Float64("freeboard", 0, "fixed freeboard (m or ft) instead of the USBR rule")
+	fbC := fs.Float64("freeboard-c", 0, "fixed USBR coefficient C in F = sqrt(C·y) (m or ft) instead of interpolating it from the discharge")
+	fbMin := fs.Float64("min-freeboard", 0, "lower bound on the freeboard (m or ft)")
+	var of outputFlags
+	u, ok, err := of.parseCommand(fs, args, stdout,
+		"canalstep section --flow Q --bottom-width B --side-slope Z --roughness N (--slope S | --max-velocity V) [--min-velocity V] [--units si|us] [--json]",
+		"Uniform flow in a trapezoidal canal: normal and critical depth, velocity, Froude number,\nfreeboard and bank height; with --max-velocity, the range of bed slopes the velocity limits allow.")
+	if !ok {
+		return err
+	}
+	if err := requireFlags(fs, "flow", "bottom-width", "side-slope", "roughness"); err != nil {
+		return err
+	}
+	if fs.Changed("slope") == fs.Changed("max-velocity") {
+		return usagef("section: give either --slope or --max-velocity (the steepest slope it allows becomes the design slope)")
+	}
+	if fs.Changed("min-velocity") && fs.Changed("kennedy-m") {
+		return usagef("section: give --min-velocity or --kennedy-m, not both")
+	}
+	if err := checkNumbers(fs,
+		append([]string{"flow", "max-velocity", "kennedy-m", "max-froude", "freeboard", "freeboard-c"}, canalPositive...),
+		append([]string{"min-velocity", "min-freeboard"}, canalNonNegative...)); err != nil {
+		return err
+	}
+	if fs.Changed("max-velocity") && fs.Changed("min-velocity") && *minV > *maxV {
+		return usagef("section: the permissible velocity --max-velocity %g is below the non-silting velocity --min-velocity %g; no slope can meet both", *maxV, *minV)
+	}
+
+	lm := unitLength(u)
+	c := hydraulics.SI()
+	ch := cf.channel(lm)
+	q := *flow * unitFlow(u)
+	res := sectionResult{
+		Units: unitsName(u), LengthUnit: u.LengthUnit(), FlowUnit: flowUnit(u),
+		Flow: sig6(*flow), BottomWidth: sig6(cf.bottomWidth), SideSlope: sig6(cf.sideSlope), Roughness: sig6(cf.roughness),
+	}
+	var yn float64
+	if fs.Changed("max-velocity") {
+		var lim hydraulics.SlopeLimits
+		if fs.Changed("kennedy-m") {
+			lim, err = hydraulics.KennedySlopeLimits(c, ch.Section, q, ch.N, *maxV*lm, *kennedy)
+		} else {
+			lim, err = hydraulics.VelocityLimitedSlopes(c, ch.Section, q, ch.N, *maxV*lm, *minV*lm)
+		}
+		if err != nil {
+			return sectionError(err)
+		}
+		ch.Slope, yn = lim.MaxSlope, lim.DepthAtMax
+		res.MaxVelocity, res.MaxSlope, res.MinSlope = sig6Ptr(*maxV), sig6Ptr(lim.MaxSlope), sig6Ptr(lim.MinSlope)
+		if lim.VelocityAtMin > 0 {
+			res.MinVelocity = sig6Ptr(lim.VelocityAtMin / lm)
+		}
+	} else {
+		if yn, err = hydraulics.NormalDepth(c, ch.Section, q, ch.N, ch.Slope); err != nil {
+			return sectionError(err)
+		}
+		v := hydraulics.Velocity(ch.Section, q, yn)
+		minVel := *minV * lm
+		if fs.Changed("kennedy-m") {
+			minVel = hydraulics.KennedyVelocity(*kennedy, yn)
+		}
+		if minVel > 0 {
+			res.MinVelocity = sig6Ptr(minVel / lm)
+			if v < minVel {
+				res.Warnings = append(res.Warnings, fmt.Sprintf("velocity %.3f %s is below the non-silting velocity %.3f %s: the canal will silt", v/lm, velocityUnit(u), minVel/lm, velocityUnit(u)))
+			}
+		}
+	}
+	yc, err := hydraulics.CriticalDepth(c, ch.Section, q)
+	if err != nil {
+		return sectionError(err)
+	}
+	s := ch.Section
+	f := hydraulics.Froude(c, s, q, yn)
+	rule := hydraulics.FreeboardRule{Fixed: *fbFixed * lm, C: *fbC * lm, Min: *fbMin * lm}
+	fb := hydraulics.Freeboard(q, yn, rule)
+	res.Slope = sig6(ch.Slope)
+	res.NormalDepth, res.CriticalDepth = sig6(yn/lm), sig6(yc/lm)
+	res.Velocity, res.Froude = sig6(hydraulics.Velocity(s, q, yn)/lm), sig6(f)
+	res.Regime = regime(f)
+	res.Area, res.WettedPerimeter, res.TopWidth = sig6(s.Area(yn)/(lm*lm)), sig6(s.WettedPerimeter(yn)/lm), sig6(s.TopWidth(yn)/lm)
+	res.HydraulicRadius, res.HydraulicDepth = sig6(s.HydraulicRadius(yn)/lm), sig6(s.HydraulicDepth(yn)/lm)
+	res.SpecificEnergy = sig6(hydraulics.SpecificEnergy(c, s, q, yn) / lm)
+	res.Freeboard, res.BankHeight = sig6(fb/lm), sig6((yn+fb)/lm)
+	res.FreeboardRule = freeboardRuleText(rule, q, u)
+	if f > *maxFroude {
+		res.Warnings = append(res.Warnings, fmt.Sprintf("Froude number %.2f is above %.2f: near-critical flow is wavy and unstable; flatten the slope or widen the bed", f, *maxFroude))
+	}
+	if res.Warnings == nil {
+		res.Warnings = []string{}
+	}
+	if of.asJSON {
+		return writeJSON(stdout, res)
+	}
+	return printSection(stdout, res, u)
+}
+
+// sectionError turns a hydraulics error into the command's error: invalid
+// input is a usage error (exit 2), an infeasible design a plain error
+// (exit 1).
+func sectionError(err error) error {
+	if errors.Is(err, hydraulics.ErrInvalid) {
+		return usageError{err}
+	}
+	if errors.Is(err, hydraulics.ErrInfeasible) {
+		return fmt.Errorf("no feasible canal slope: %w", err)
+	}
+	return err
+}
+
+func regime(f float64) string {
+	switch {
+	case f < 1:
+		return "subcritical"
+	case f > 1:
+		return "supercritical"
+	}
+	return "critical"
+}
+
+func unitsName(u report.Units) string {
+	if u == report.US {
+		return "us"
+	}
+	return "si"
+}
+
+// freeboardRuleText names the freeboard rule and its source.
+func freeboardRuleText(r hydraulics.FreeboardRule, q float64, u report.Units) string {
+	lm := unitLength(u)
+	var s string
+	switch {
+	case r.Fixed > 0:
+		return "fixed by --freeboard"
+	case r.C > 0:
+		s = fmt.Sprintf("USBR F = sqrt(C·y) with C = %.3f %s set by --freeboard-c", r.C/lm, u.LengthUnit())
+	default:
+		s = fmt.Sprintf("USBR F = sqrt(C·y), C = %.3f %s interpolated in log Q between 1.5 ft at 20 cfs and 2.5 ft at 3000 cfs (Chow 1959 ch. 7 citing USBR)",
+			hydraulics.USBRFreeboardCoefficient(q)/lm, u.LengthUnit())
+	}
+	if r.Min > 0 {
+		s += fmt.Sprintf(", at least %.3f %s", r.Min/lm, u.LengthUnit())
+	}
+	return s
+}
+
+func writeJSON(w io.Writer, v any) error {
+	enc := json.NewEncoder(w)
+	enc.SetIndent("", "  ")
+	return enc.Encode(v)
+}
+
+// table prints label/value rows aligned in two columns, with optional
+// headings between groups of rows.
+type table struct{ rows [][2]string }
+
+func (t *table) add(label, format string, a ...any) {
+	t.rows = append(t.rows, [2]string{label, fmt.Sprintf(format, a...)})
+}
+
+// heading adds a line that starts a group of rows.
+func (t *table) heading(title string) { t.rows = append(t.rows, [2]string{title, "\x00"}) }
+
+func (t *table) write(w io.Writer) error {
+	width := 0
+	for _, r := range t.rows {
+		if r[1] != "\x00" {
+			width = max(width, utf8.RuneCountInString(r[0]))
+		}
+	}
+	for _, r := range t.rows {
+		var err error
+		if r[1] == "\x00" {
+			_, err = fmt.Fprintln(w, r[0])
+		} else {
+			_, err = fmt.Fprintf(w, "  %s%s  %s\n", r[0], strings.Repeat(" ", width-utf8.RuneCountInString(r[0])), r[1])
+		}
+		if err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+func writeWarnings(w io.Writer, warnings []string) {
+	if len(warnings) == 0 {
+		return
+	}
+	fmt.Fprintln(w, "Warnings:")
+	for _, s := range warnings {
+		fmt.Fprintf(w, "  - %s\n", s)
+	}
+}
+
+func printSection(w io.Writer, r sectionResult, u report.Units) error {
+	L, Q, V := u.LengthUnit(), flowUnit(u), velocityUnit(u)
+	S := L + "/" + L // slope
+	fmt.Fprintf(w, "Canal section, uniform flow (%s units)\n", strings.ToUpper(r.Units))
+	var t table
+	t.add("discharge", "%.4g %s", float64(r.Flow), Q)
+	t.add("bottom width", "%.3f %s", float64(r.BottomWidth), L)
+	t.add("side slope", "%g H : 1 V", float64(r.SideSlope))
+	t.add("Manning n", "%.4g", float64(r.Roughness))
+	if r.MaxSlope != nil {
+		t.add("permissible velocity", "%.3f %s", float64(*r.MaxVelocity), V)
+		t.add("steepest slope (V at limit)", "%.4e %s", float64(*r.MaxSlope), S)
+		if r.MinVelocity != nil {
+			t.add("non-silting velocity", "%.3f %s", float64(*r.MinVelocity), V)
+			t.add("flattest slope (V at limit)", "%.4e %s", float64(*r.MinSlope), S)
+		} else {
+			t.add("flattest slope", "no lower velocity limit given")
+		}
+		t.add("design slope (steepest)", "%.4e %s", float64(r.Slope), S)
+	} else {
+		t.add("bed slope", "%.4e %s", float64(r.Slope), S)
+	}
+	t.add("normal depth", "%.3f %s", float64(r.NormalDepth), L)
+	t.add("critical depth", "%.3f %s", float64(r.CriticalDepth), L)
+	t.add("mean velocity", "%.3f %s", float64(r.Velocity), V)
+	t.add("Froude number", "%.3f (%s)", float64(r.Froude), r.Regime)
+	t.add("flow area", "%.3f %s²", float64(r.Area), L)
+	t.add("wetted perimeter", "%.3f %s", float64(r.WettedPerimeter), L)
+	t.add("top width", "%.3f %s", float64(r.TopWidth), L)
+	t.add("hydraulic radius", "%.3f %s", float64(r.HydraulicRadius), L)
+	t.add("hydraulic depth", "%.3f %s", float64(r.HydraulicDepth), L)
+	t.add("specific energy", "%.3f %s", float64(r.SpecificEnergy), L)
+	t.add("freeboard", "%.3f %s", float64(r.Freeboard), L)
+	t.add("bank height above bed", "%.3f %s", float64(r.BankHeight), L)
+	if err := t.write(w); err != nil {
+		return err
+	}
+	fmt.Fprintf(w, "Freeboard rule: %s.\n", r.FreeboardRule)
+	writeWarnings(w, r.Warnings)
+	return nil
+}
