@@ -24,6 +24,7 @@ func testAlternatives() AlternativesChart {
 }
 
 func TestAlternativesChart(t *testing.T) {
+	t.Parallel()
 	dir := *plotDir
 	if dir == "" {
 		dir = t.TempDir()

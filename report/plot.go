@@ -369,14 +369,14 @@ func lineStyle(c color.Color, widthPt float64, dashes ...float64) draw.LineStyle
 // addLines adds (x, y) through idx as one line per continuous run and puts
 // one legend entry for them, named name (no entry when name is empty).
 func addLines(p *plot.Plot, name string, x, y []float64, idx []int, ls draw.LineStyle) error {
-	var first *plotter.Line
-	for _, r := range runs(x, y, idx) {
+	var first plot.Thumbnailer
+	for _, r := range chunks(runs(x, y, idx), 200) {
 		l, err := plotter.NewLine(r)
 		if err != nil {
 			return fmt.Errorf("%s line: %w", name, err)
 		}
 		l.LineStyle = ls
-		p.Add(l)
+		p.Add(boxless{l})
 		if first == nil {
 			first = l
 		}
@@ -386,6 +386,31 @@ func addLines(p *plot.Plot, name string, x, y []float64, idx []int, ls draw.Line
 	}
 	return nil
 }
+
+// chunks cuts polylines into pieces of at most n points that share their
+// end points. The rasteriser behind PNG output slows down more than
+// linearly with the length of a stroked path; pieces of a few hundred points
+// draw several times faster and look the same.
+func chunks(lines []plotter.XYs, n int) []plotter.XYs {
+	var out []plotter.XYs
+	for _, l := range lines {
+		for len(l) > n {
+			out = append(out, l[:n])
+			l = l[n-1:]
+		}
+		out = append(out, l)
+	}
+	return out
+}
+
+// boxless hides a plotter's glyph boxes. A line's boxes (one per point) only
+// pad the axes, which canalstep sets itself, and building them thousands of
+// times per plot dominated the rendering time.
+type boxless struct{ l *plotter.Line }
+
+func (b boxless) Plot(c draw.Canvas, p *plot.Plot) { b.l.Plot(c, p) }
+
+func (b boxless) DataRange() (xmin, xmax, ymin, ymax float64) { return b.l.DataRange() }
 
 // addRegions adds filled polygons with no outline.
 func addRegions(p *plot.Plot, polys []plotter.XYs, fill color.Color) error {

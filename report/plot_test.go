@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"image"
 	"image/png"
+	"io"
 	"math"
 	"os"
 	"path/filepath"
@@ -100,6 +101,7 @@ func stationLabel(c float64) string {
 }
 
 func TestPlotsRender(t *testing.T) {
+	t.Parallel()
 	dir := *plotDir
 	if dir == "" {
 		dir = t.TempDir()
@@ -177,4 +179,75 @@ func mustRead(t testing.TB, path string) []byte {
 		t.Fatal(err)
 	}
 	return b
+}
+
+// TestLongSectionGolden compares the rendered long section with
+// testdata/longsection_golden.png. Rendering is pure Go and deterministic
+// on one machine; the tolerance (at most 20 pixels off by more than 24/255
+// in a channel) allows for anti-aliasing that differs by a few levels along
+// edges on another CPU architecture (common practice, no source), while a
+// single changed digit in a drop label (58 pixels, measured) still fails.
+// Refresh with: go test ./report -run Golden -regen
+func TestLongSectionGolden(t *testing.T) {
+	t.Parallel()
+	for _, c := range []struct {
+		golden string
+		render func(w *bytes.Buffer) error
+	}{
+		{"longsection_golden.png", func(w *bytes.Buffer) error { return RenderLongSection(w, "png", testSection(601, 6000)) }},
+		{"alternatives_golden.png", func(w *bytes.Buffer) error { return RenderAlternativesChart(w, "png", testAlternatives()) }},
+	} {
+		t.Run(c.golden, func(t *testing.T) {
+			var got bytes.Buffer
+			if err := c.render(&got); err != nil {
+				t.Fatal(err)
+			}
+			path := filepath.Join("testdata", c.golden)
+			if *regenPlots {
+				if err := WriteFileAtomic(path, func(w io.Writer) error { _, err := w.Write(got.Bytes()); return err }); err != nil {
+					t.Fatal(err)
+				}
+				return
+			}
+			want := decodePNG(t, mustRead(t, path))
+			bad, total := pixelDiff(decodePNG(t, got.Bytes()), want, 24)
+			if bad < 0 {
+				t.Fatalf("size differs from %s", path)
+			}
+			if frac := float64(bad) / float64(total); bad > 20 {
+				out := filepath.Join(t.TempDir(), strings.Replace(c.golden, "_golden", "_got", 1))
+				os.WriteFile(out, got.Bytes(), 0o644)
+				t.Errorf("%d of %d pixels (%.2f %%) differ from %s; the new image is %s (refresh with -regen if the change is intended)",
+					bad, total, 100*frac, path, out)
+			}
+		})
+	}
+}
+
+// pixelDiff counts the pixels whose channels differ by more than tol (of
+// 255) between a and b; bad is -1 when the sizes differ.
+func pixelDiff(a, b image.Image, tol uint32) (bad, total int) {
+	if a.Bounds() != b.Bounds() {
+		return -1, 0
+	}
+	r := a.Bounds()
+	t16 := tol * 257
+	for y := r.Min.Y; y < r.Max.Y; y++ {
+		for x := r.Min.X; x < r.Max.X; x++ {
+			r1, g1, b1, a1 := a.At(x, y).RGBA()
+			r2, g2, b2, a2 := b.At(x, y).RGBA()
+			if absDiff(r1, r2) > t16 || absDiff(g1, g2) > t16 || absDiff(b1, b2) > t16 || absDiff(a1, a2) > t16 {
+				bad++
+			}
+			total++
+		}
+	}
+	return bad, total
+}
+
+func absDiff(a, b uint32) uint32 {
+	if a > b {
+		return a - b
+	}
+	return b - a
 }
