@@ -129,6 +129,16 @@ func JumpType(f1 float64) string {
 // about 10 % for the inflow Froude numbers of canal drops.
 func JumpLength(y1, y2 float64) float64 { return 6.9 * (y2 - y1) }
 
+// JumpLengthUSBR returns the jump length (m) as 6.1·y2 from the USBR curve
+// for roughly 4.5 < F1 < 13 (Peterka 1958, EM 25, and Chow 1959 Fig. 15-4;
+// from memory); shorter outside that range.
+func JumpLengthUSBR(y2 float64) float64 { return 6.1 * y2 }
+
+// JumpLengthSilvester returns the jump length (m) on a horizontal
+// rectangular floor as Lj = 9.75·y1·(F1 − 1)^1.01 (Silvester 1964, J. Hydr.
+// Div. ASCE 90(HY1); from memory, unverified).
+func JumpLengthSilvester(y1, f1 float64) float64 { return 9.75 * y1 * math.Pow(f1-1, 1.01) }
+
 // CrestRaise returns the height p (m) of a rectangular crest above the
 // upstream bed that makes the upstream specific energy equal upstreamEnergy
 // (m) when critical depth yc (m) forms on the crest: p = E − 1.5·yc
@@ -405,10 +415,13 @@ func CheckOutlet(c Consts, d Drop, in DropInput, q float64) (OutletCheck, error)
 	g := Rand(c, qu, h)
 	o.CriticalDepth, o.DropNumber, o.ToeDepth, o.SequentDepth = g.CriticalDepth, g.DropNumber, g.ToeDepth, g.SequentDepth
 	o.ToeFroude = qu / (g.ToeDepth * math.Sqrt(c.G*g.ToeDepth))
-	var critical bool
-	var err error
-	o.TailwaterDepth, o.DownstreamDepth, critical, err = tailwater(c, in, b, d.BasinDepression, q)
+	e, err := newBasinEnd(c, in, b, q)
 	if err != nil {
+		return OutletCheck{}, err
+	}
+	o.DownstreamDepth = e.yn
+	var critical bool
+	if o.TailwaterDepth, critical, err = e.tailwater(d.BasinDepression); err != nil {
 		return OutletCheck{}, err
 	}
 	o.TailwaterRatio = o.TailwaterDepth / o.SequentDepth
@@ -458,32 +471,52 @@ func CheckOutlet(c Consts, d Drop, in DropInput, q float64) (OutletCheck, error)
 	return o, nil
 }
 
-// tailwater returns the subcritical depth TW at the basin end for discharge
-// q, basin width b and floor depression ds, and the downstream normal depth.
-// critical is true when the downstream canal has too little energy for a
-// subcritical basin-end depth; TW is then the basin's critical depth.
-func tailwater(c Consts, in DropInput, b, ds, q float64) (tw, yn float64, critical bool, err error) {
+// basinEnd is the energy balance between the basin end and the downstream
+// canal at one discharge, prepared once so that the tailwater can be solved
+// for many floor depressions:
+//
+//	TW + beta/TW² = ds + rhs0,   beta = (1 − Co)·α·Q²/(2g·B²)
+type basinEnd struct {
+	yn   float64 // downstream normal depth, m
+	rhs0 float64 // yn + (1 − Co)·α·V_d²/2g, m
+	beta float64 // m³
+	tm   float64 // depth at which the left side is least, m
+}
+
+func newBasinEnd(c Consts, in DropInput, b, q float64) (basinEnd, error) {
 	ch := in.Downstream
-	yn, err = NormalDepth(c, ch.Section, q, ch.N, ch.Slope)
+	yn, err := NormalDepth(c, ch.Section, q, ch.N, ch.Slope)
 	if err != nil {
-		return 0, 0, false, fmt.Errorf("downstream canal: %w", err)
+		return basinEnd{}, fmt.Errorf("downstream canal: %w", err)
 	}
-	w := 1 - in.TransitionLoss
-	a := c.alpha()
+	w := (1 - in.TransitionLoss) * c.alpha()
 	vd := Velocity(ch.Section, q, yn)
-	rhs := ds + yn + w*a*vd*vd/(2*c.G)
-	beta := w * a * q * q / (2 * c.G * b * b) // TW + beta/TW² = rhs
-	if beta == 0 {
-		return rhs, yn, false, nil
+	beta := w * q * q / (2 * c.G * b * b)
+	return basinEnd{yn: yn, rhs0: yn + w*vd*vd/(2*c.G), beta: beta, tm: math.Cbrt(2 * beta)}, nil
+}
+
+// tailwater returns the subcritical depth TW at the basin end with the floor
+// ds below the downstream bed. critical is true when the downstream canal
+// has too little energy for a subcritical basin-end depth; TW is then the
+// basin's critical depth.
+func (e basinEnd) tailwater(ds float64) (tw float64, critical bool, err error) {
+	rhs := ds + e.rhs0
+	if e.beta == 0 {
+		return rhs, false, nil
 	}
-	tm := math.Cbrt(2 * beta) // minimum of the left side
-	if 1.5*tm >= rhs {
-		return tm, yn, true, nil
+	if 1.5*e.tm >= rhs {
+		return e.tm, true, nil
 	}
-	tw, err = solveBracket(tm, rhs, 1e-12*rhs, func(t float64) (float64, float64) {
+	beta := e.beta
+	tw, err = solveBracket(e.tm, rhs, 1e-12*rhs, func(t float64) (float64, float64) {
 		return t + beta/(t*t) - rhs, 1 - 2*beta/(t*t*t)
 	})
-	return tw, yn, false, err
+	return tw, false, err
+}
+
+// randSequent is Rand's y2 = 1.66·h·D_N^0.27 alone (see [Rand]).
+func randSequent(c Consts, q, h float64) float64 {
+	return 1.66 * h * math.Pow(q*q/(c.G*h*h*h), 0.27)
 }
 
 // requiredDepression returns the basin floor depression d_s ≥ 0 (m) at which
@@ -492,20 +525,21 @@ func tailwater(c Consts, in DropInput, b, ds, q float64) (tw, yn float64, critic
 // y2 only slowly, so the difference rises with d_s and bisection applies.
 func requiredDepression(c Consts, in DropInput, p, q, ratio float64) (float64, error) {
 	b := in.CrestWidth
-	gap := func(ds float64) float64 {
-		tw, _, _, err := tailwater(c, in, b, ds, q)
-		if err != nil {
-			return math.NaN()
-		}
-		return tw - ratio*Rand(c, q/b, in.Height+p+ds).SequentDepth
-	}
-	g0 := gap(0)
-	if math.IsNaN(g0) {
-		_, _, _, err := tailwater(c, in, b, 0, q)
+	e, err := newBasinEnd(c, in, b, q)
+	if err != nil {
 		return 0, err
 	}
-	if g0 >= 0 {
-		return 0, nil
+	var solveErr error
+	gap := func(ds float64) float64 {
+		tw, _, err := e.tailwater(ds)
+		if err != nil {
+			solveErr = err
+			return math.Inf(1)
+		}
+		return tw - ratio*randSequent(c, q/b, in.Height+p+ds)
+	}
+	if gap(0) >= 0 {
+		return 0, solveErr
 	}
 	hi, err := expandUp(math.Max(in.Height, 0.1), gap)
 	if err != nil {
@@ -520,5 +554,5 @@ func requiredDepression(c Consts, in DropInput, p, q, ratio float64) (float64, e
 			lo = mid
 		}
 	}
-	return hi, nil
+	return hi, solveErr
 }

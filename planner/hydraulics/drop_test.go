@@ -407,3 +407,29 @@ func TestDesignDropFixed(t *testing.T) {
 		t.Errorf("negative depression: err = %v", err)
 	}
 }
+
+// TestJumpLengths is the cross-check of reference sheet §3.5 ([C]): for
+// case SI-B (q = 1 m²/s, h = 2 m, F1 = 4.59) with the Belanger sequent of
+// Rand's y1, the three empirical jump lengths are 5.85 m (6.9·(y2 − y1),
+// Elevatorski), 6.20 m (6.1·y2, USBR) and 6.00 m (Silvester), and agree
+// within about 10 %. ±0.005 m: the sheet prints centimetres.
+func TestJumpLengths(t *testing.T) {
+	c := SI()
+	g := Rand(c, 1.0, 2.0)
+	y1 := g.ToeDepth
+	y2 := BelangerSequent(c, 1.0, y1)
+	f1 := 1.0 / (y1 * math.Sqrt(c.G*y1))
+	ls := []float64{JumpLength(y1, y2), JumpLengthUSBR(y2), JumpLengthSilvester(y1, f1)}
+	for i, want := range []float64{5.85, 6.20, 6.00} {
+		if math.Abs(ls[i]-want) > 0.005 {
+			t.Errorf("jump length %d = %.4f m, sheet %.2f", i, ls[i], want)
+		}
+	}
+	lo, hi := math.Min(ls[0], math.Min(ls[1], ls[2])), math.Max(ls[0], math.Max(ls[1], ls[2]))
+	if hi > 1.1*lo {
+		t.Errorf("jump lengths %v differ by more than 10 %%", ls)
+	}
+	if JumpType(f1) != "steady" || JumpType(3) != "oscillating" || JumpType(0.5) != "none" || JumpType(1.2) != "undular" || JumpType(2) != "weak" || JumpType(10) != "strong" {
+		t.Error("jump types by F1 do not follow the USBR bands (Chow 1959 Ch. 15, from memory)")
+	}
+}

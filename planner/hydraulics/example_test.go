@@ -156,3 +156,79 @@ func ExampleDesignNotch() {
 	fmt.Printf("sill %.4f m, sides %.4f H:V\n", nt.SillWidth, nt.SideFlare)
 	// Output: sill 1.4490 m, sides 0.9982 H:V
 }
+
+func ExampleDischarge() {
+	q := hydraulics.Discharge(hydraulics.SI(), canal, 0.015, 0.0004, 1.4961)
+	fmt.Printf("Manning discharge at 1.4961 m: %.3f m³/s\n", q)
+	// Output: Manning discharge at 1.4961 m: 10.000 m³/s
+}
+
+func ExampleSection_DepthForArea() {
+	fmt.Printf("depth for 7.875 m²: %.4f m\n", canal.DepthForArea(7.875))
+	// Output: depth for 7.875 m²: 1.5000 m
+}
+
+func ExampleSlopeForVelocity() {
+	s, y, _ := hydraulics.SlopeForVelocity(hydraulics.SI(), canal, 10, 0.025, 0.76)
+	fmt.Printf("V = 0.76 m/s on slope %.4e m/m at depth %.4f m\n", s, y)
+	// Output: V = 0.76 m/s on slope 2.7283e-04 m/m at depth 2.1260 m
+}
+
+func ExampleKennedyVelocity() {
+	fmt.Printf("Kennedy V0 at 1.9739 m depth, m = 1: %.4f m/s\n", hydraulics.KennedyVelocity(1, 1.9739))
+	// Output: Kennedy V0 at 1.9739 m depth, m = 1: 0.8499 m/s
+}
+
+func ExampleBankHeight() {
+	fmt.Printf("bank %.3f m above the bed with 0.5 m freeboard\n", hydraulics.BankHeight(10, 1.4961, hydraulics.FreeboardRule{Fixed: 0.5}))
+	// Output: bank 1.996 m above the bed with 0.5 m freeboard
+}
+
+func ExampleCrestRaise() {
+	// Upstream energy 1.5789 m, critical depth 1.0424 m on a 3 m crest.
+	fmt.Printf("crest raise %.4f m\n", hydraulics.CrestRaise(1.5789, 1.0424))
+	// Output: crest raise 0.0153 m
+}
+
+func ExampleControlWidth() {
+	fmt.Printf("bed-level control width %.3f m\n", hydraulics.ControlWidth(hydraulics.SI(), 10, 1.5789))
+	// Output: bed-level control width 2.956 m
+}
+
+func ExampleJumpType() {
+	for _, f1 := range []float64{1.5, 3.0, 6.0} {
+		fmt.Printf("F1 %.1f: %s\n", f1, hydraulics.JumpType(f1))
+	}
+	// Output:
+	// F1 1.5: undular
+	// F1 3.0: oscillating
+	// F1 6.0: steady
+}
+
+func ExampleJumpLength() {
+	y1, y2, f1 := 0.1691, 1.0167, 4.591 // m, m, toe Froude number
+	fmt.Printf("6.9(y2-y1) %.2f m, 6.1 y2 %.2f m, Silvester %.2f m\n",
+		hydraulics.JumpLength(y1, y2), hydraulics.JumpLengthUSBR(y2), hydraulics.JumpLengthSilvester(y1, f1))
+	// Output: 6.9(y2-y1) 5.85 m, 6.1 y2 6.20 m, Silvester 6.00 m
+}
+
+func ExampleNotchDischarge() {
+	nt := hydraulics.Notch{SillWidth: 1.449, SideFlare: 0.9982}
+	fmt.Printf("%.3f m³/s at 1.4961 m head (Cd 0.70, placeholder)\n", hydraulics.NotchDischarge(hydraulics.SI(), nt, 0.70, 1.4961))
+	// Output: 10.000 m³/s at 1.4961 m head (Cd 0.70, placeholder)
+}
+
+func ExampleWaterSurfaceProfile() {
+	// M2 drawdown towards a free overfall at full canal width: critical
+	// depth at the brink (chainage 0), bank 2.2 m above the bed.
+	yc, _ := hydraulics.CriticalDepth(hydraulics.SI(), canal, 10)
+	pts, _ := hydraulics.WaterSurfaceProfile(hydraulics.SI(), reach, 10, yc, []float64{-1000, -300, -50, 0}, 2.2)
+	for _, p := range pts {
+		fmt.Printf("%6.0f m: depth %.3f m, V %.3f m/s, F %.2f, freeboard %.3f m\n", p.Chainage, p.Depth, p.Velocity, p.Froude, p.Freeboard)
+	}
+	// Output:
+	//  -1000 m: depth 1.452 m, V 1.330 m/s, F 0.42, freeboard 0.748 m
+	//   -300 m: depth 1.321 m, V 1.519 m/s, F 0.50, freeboard 0.879 m
+	//    -50 m: depth 1.132 m, V 1.880 m/s, F 0.66, freeboard 1.068 m
+	//      0 m: depth 0.892 m, V 2.586 m/s, F 1.00, freeboard 1.308 m
+}
