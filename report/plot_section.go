@@ -6,7 +6,6 @@ import (
 	"io"
 	"math"
 	"sort"
-	"strings"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
@@ -193,7 +192,7 @@ func RenderLongSection(w io.Writer, format string, s LongSection) error {
 	p.Legend.Add("fill", swatch{fillFill})
 
 	lo, hi, _ := dataRange(ground, bed, water, bank, base)
-	marks := newDropMarks(u, s.Drops, x, idx, ground, bed, bank, water)
+	marks := newDropMarks(u, s.Drops, x, idx, ground, bed, bank, water, base)
 	lo = math.Min(lo, marks.lowest())
 	hi = math.Max(hi, marks.highest())
 	if hi-lo <= 0 {
@@ -234,7 +233,7 @@ func RenderLongSection(w io.Writer, format string, s LongSection) error {
 		marks.reserve(p, top)
 		top, bot = layout(p, q, dc)
 		// The legend text says whether every drop could be labelled.
-		p.Legend.Add(marks.legend(u, s.Drops), marks)
+		p.Legend.Add(marks.legend(u), marks)
 	}
 	if q != nil {
 		// Room at the top of the lower panel for its legend.
@@ -346,14 +345,9 @@ func (lp *LowerPanel) plot(u Units, x []float64, idx []int) (*plot.Plot, error) 
 	q.Y.Tick.Marker = niceTicks{3}
 	q.Add(lightGrid())
 	var all [][]float64
-	for i, ps := range lp.Series {
-		v := convert(u, ps.Values)
-		all = append(all, v)
-		ls := lineStyle(panelColors[i%len(panelColors)], 1)
-		if err := addLines(q, ps.Name, x, v, idx, ls); err != nil {
-			return nil, err
-		}
-	}
+	// Limits are drawn first, so that a series running along a limit stays
+	// visible, and listed last.
+	var limitLines []*plotter.Line
 	for i, l := range lp.Limits {
 		v := u.Length(l.Value)
 		all = append(all, []float64{v})
@@ -363,7 +357,18 @@ func (lp *LowerPanel) plot(u Units, x []float64, idx []int) (*plot.Plot, error) 
 		}
 		ln.LineStyle = lineStyle(color.RGBA{R: 200, G: 30, B: 30, A: 255}, 0.7, 4+2*float64(i), 2)
 		q.Add(ln)
-		q.Legend.Add(l.Name, ln)
+		limitLines = append(limitLines, ln)
+	}
+	for i, ps := range lp.Series {
+		v := convert(u, ps.Values)
+		all = append(all, v)
+		ls := lineStyle(panelColors[i%len(panelColors)], 1.2)
+		if err := addLines(q, ps.Name, x, v, idx, ls); err != nil {
+			return nil, err
+		}
+	}
+	for i, l := range lp.Limits {
+		q.Legend.Add(l.Name, limitLines[i])
 	}
 	lo, hi, ok := dataRange(all...)
 	if !ok {
@@ -392,6 +397,8 @@ type dropMarks struct {
 	style            text.Style
 	envX, envZ       []float64 // the highest drawn line at each plotted station
 	every            int       // label every k-th drop (1: all)
+	usual            float64   // the commonest drop height, m
+	mixed            bool      // some drops differ from usual
 	need             vg.Length // label length plus the gaps around it
 }
 
@@ -419,12 +426,9 @@ func newDropMarks(u Units, drops []DropMark, xs []float64, idx []int, lines ...[
 			d.envX, d.envZ = append(d.envX, xs[i]), append(d.envZ, z)
 		}
 	}
-	same := true
-	for _, dm := range drops {
-		h := dm.UpstreamInvert - dm.DownstreamInvert
-		h0 := drops[0].UpstreamInvert - drops[0].DownstreamInvert
-		same = same && math.Abs(h-h0) < 0.0005
-	}
+	// Labels state the height only where it differs from the commonest one,
+	// which the legend gives.
+	d.usual = commonHeight(drops)
 	for _, i := range order {
 		dm := drops[i]
 		x := u.Length(dm.Chainage)
@@ -434,8 +438,9 @@ func newDropMarks(u Units, drops []DropMark, xs []float64, idx []int, lines ...[
 			top = math.Max(top, z)
 		}
 		label := dm.Label
-		if h := dm.UpstreamInvert - dm.DownstreamInvert; !same && h > 0 {
+		if h := dm.UpstreamInvert - dm.DownstreamInvert; math.Abs(h-d.usual) >= 0.0005 {
 			label = fmt.Sprintf("%s  (%.2f %s)", dm.Label, u.Length(h), u.LengthUnit())
+			d.mixed = true
 		}
 		d.x = append(d.x, x)
 		d.up = append(d.up, up)
@@ -451,19 +456,31 @@ func newDropMarks(u Units, drops []DropMark, xs []float64, idx []int, lines ...[
 }
 
 // legend returns the legend text for the drops.
-func (d *dropMarks) legend(u Units, drops []DropMark) string {
-	text := "drop (station"
-	if len(drops) > 0 && !strings.Contains(d.labels[0], "(") {
-		h := drops[0].UpstreamInvert - drops[0].DownstreamInvert
-		text += fmt.Sprintf("; each %.2f %s high", u.Length(h), u.LengthUnit())
-	} else {
-		text += ", height"
+func (d *dropMarks) legend(u Units) string {
+	h := fmt.Sprintf("%.2f %s", u.Length(d.usual), u.LengthUnit())
+	text := "drop (station; each " + h + " high)"
+	if d.mixed {
+		text = "drop (station; " + h + " high unless stated)"
 	}
-	text += ")"
 	if d.every > 1 {
-		text += fmt.Sprintf("; every %d. drop labelled", d.every)
+		text += fmt.Sprintf("; 1 in %d labelled", d.every)
 	}
 	return text
+}
+
+// commonHeight returns the drop height (m) that occurs most often, to the
+// millimetre; ties go to the greater height.
+func commonHeight(drops []DropMark) float64 {
+	count := map[int64]int{}
+	var best int64
+	for _, dm := range drops {
+		k := int64(math.Round(1000 * (dm.UpstreamInvert - dm.DownstreamInvert)))
+		count[k]++
+		if count[k] > count[best] || count[k] == count[best] && k > best {
+			best = k
+		}
+	}
+	return float64(best) / 1000
 }
 
 // envMax returns the highest drawn line between chainages a and b
