@@ -2,6 +2,7 @@ package report
 
 import (
 	"bytes"
+	"encoding/xml"
 	"flag"
 	"fmt"
 	"image"
@@ -10,6 +11,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"testing"
 )
@@ -136,7 +138,10 @@ func TestPlotsRender(t *testing.T) {
 				t.Fatal(err)
 			}
 			if strings.HasSuffix(c.name, ".svg") {
-				checkSVG(t, b)
+				// 28 × 17 cm = 793.7 × 481.9 pt.
+				if w, h := checkSVG(t, b); math.Abs(w-793.7) > 0.1 || math.Abs(h-481.9) > 0.1 {
+					t.Errorf("SVG is %g × %g pt, want 793.7 × 481.9", w, h)
+				}
 				return
 			}
 			cfg, err := png.DecodeConfig(bytes.NewReader(b))
@@ -150,16 +155,42 @@ func TestPlotsRender(t *testing.T) {
 	}
 }
 
-// checkSVG checks b is a complete SVG document with its font embedded.
-func checkSVG(t *testing.T, b []byte) {
+// checkSVG checks b is a well-formed SVG document with its font embedded
+// and returns its width and height in points.
+func checkSVG(t *testing.T, b []byte) (w, h float64) {
 	t.Helper()
-	s := string(b)
-	if !strings.HasPrefix(s, "<?xml") || !strings.Contains(s, "<svg") || !strings.HasSuffix(strings.TrimSpace(s), "</svg>") {
-		t.Fatalf("not a complete SVG document (%d bytes)", len(b))
+	dec := xml.NewDecoder(bytes.NewReader(b))
+	root := true
+	for {
+		tok, err := dec.Token()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			t.Fatalf("SVG is not well-formed XML: %v", err)
+		}
+		if se, ok := tok.(xml.StartElement); ok && root {
+			root = false
+			if se.Name.Local != "svg" {
+				t.Fatalf("root element %q, want svg", se.Name.Local)
+			}
+			for _, a := range se.Attr {
+				switch a.Name.Local {
+				case "width":
+					w, _ = strconv.ParseFloat(strings.TrimSuffix(a.Value, "pt"), 64)
+				case "height":
+					h, _ = strconv.ParseFloat(strings.TrimSuffix(a.Value, "pt"), 64)
+				}
+			}
+		}
 	}
-	if !strings.Contains(s, "@font-face") {
+	if root {
+		t.Fatal("SVG has no root element")
+	}
+	if !bytes.Contains(b, []byte("@font-face")) {
 		t.Error("SVG does not embed its font")
 	}
+	return w, h
 }
 
 // decodePNG decodes a PNG file.

@@ -3,6 +3,7 @@ package report
 import (
 	"bytes"
 	"fmt"
+	"io"
 	"math"
 	"math/rand/v2"
 	"strings"
@@ -378,4 +379,33 @@ func TestGroundProfileBadInput(t *testing.T) {
 	if err := RenderGroundProfile(&bytes.Buffer{}, "png", GroundProfile{Chainage: []float64{0, 1, 2}, Ground: []float64{1, 2}}); err == nil {
 		t.Error("length mismatch: want an error")
 	}
+}
+
+// FuzzLongSection feeds odd profiles (NaN, repeated chainages, drops off
+// the ends, huge and tiny ranges) to the long section: it must return an
+// error or draw, never panic.
+func FuzzLongSection(f *testing.F) {
+	f.Add([]byte{0, 10, 20, 30, 40}, []byte{5, 4, 3, 2, 1}, []byte{4, 3, 2, 1, 0}, []byte{2}, 1.0)
+	f.Add([]byte{0, 0, 0, 1}, []byte{255, 0, 255, 0}, []byte{0, 0, 0, 0}, []byte{0, 3}, 1e6)
+	f.Add([]byte{1, 2, 3}, []byte{1, 1, 1}, []byte{1, 1, 1}, []byte{}, -1.0)
+	f.Add([]byte{0, 50, 100, 150, 200, 250}, []byte{10, 255, 9, 8, 255, 7}, []byte{9, 9, 8, 8, 7, 6}, []byte{1, 2, 3, 4, 5, 250}, 1e-3)
+	f.Fuzz(func(t *testing.T, xs, zs, bs, drops []byte, scale float64) {
+		n := min(len(xs), len(zs), len(bs), 400)
+		s := LongSection{Name: "fuzz", Width: 10, Height: 8}
+		var c float64
+		for i := range n {
+			c += float64(xs[i]) * scale
+			g := float64(zs[i]) * scale
+			if zs[i] == 255 {
+				g = math.NaN()
+			}
+			s.Chainage = append(s.Chainage, c)
+			s.Ground = append(s.Ground, g)
+			s.Invert = append(s.Invert, float64(bs[i])*scale)
+		}
+		for _, d := range drops {
+			s.Drops = append(s.Drops, DropMark{Chainage: float64(d) * scale, Label: "x", UpstreamInvert: float64(d) * scale, DownstreamInvert: 0})
+		}
+		_ = RenderLongSection(io.Discard, "svg", s)
+	})
 }
