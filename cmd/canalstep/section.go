@@ -9,6 +9,7 @@ import (
 	"math"
 	"strconv"
 	"strings"
+	"text/tabwriter"
 	"unicode/utf8"
 
 	flag "github.com/spf13/pflag"
@@ -128,33 +129,44 @@ func sig6Ptr(f float64) *sig6 { n := sig6(f); return &n }
 // sectionResult is the JSON output of `canalstep section`, in the units of
 // --units (lengths m or ft, discharge m³/s or cfs, velocity m/s or ft/s).
 type sectionResult struct {
-	Units           string   `json:"units"`
-	LengthUnit      string   `json:"length_unit"`
-	FlowUnit        string   `json:"flow_unit"`
-	Flow            sig6     `json:"flow"`
-	BottomWidth     sig6     `json:"bottom_width"`
-	SideSlope       sig6     `json:"side_slope"`
-	Roughness       sig6     `json:"roughness"`
-	Slope           sig6     `json:"slope"`
-	MaxVelocity     *sig6    `json:"max_velocity,omitempty"`
-	MinVelocity     *sig6    `json:"min_velocity,omitempty"`
-	MaxSlope        *sig6    `json:"max_slope,omitempty"`
-	MinSlope        *sig6    `json:"min_slope,omitempty"`
-	NormalDepth     sig6     `json:"normal_depth"`
-	CriticalDepth   sig6     `json:"critical_depth"`
-	Velocity        sig6     `json:"velocity"`
-	Froude          sig6     `json:"froude"`
-	Regime          string   `json:"regime"`
-	Area            sig6     `json:"area"`
-	WettedPerimeter sig6     `json:"wetted_perimeter"`
-	TopWidth        sig6     `json:"top_width"`
-	HydraulicRadius sig6     `json:"hydraulic_radius"`
-	HydraulicDepth  sig6     `json:"hydraulic_depth"`
-	SpecificEnergy  sig6     `json:"specific_energy"`
-	Freeboard       sig6     `json:"freeboard"`
-	FreeboardRule   string   `json:"freeboard_rule"`
-	BankHeight      sig6     `json:"bank_height"`
-	Warnings        []string `json:"warnings"`
+	Units           string       `json:"units"`
+	LengthUnit      string       `json:"length_unit"`
+	FlowUnit        string       `json:"flow_unit"`
+	Flow            sig6         `json:"flow"`
+	BottomWidth     sig6         `json:"bottom_width"`
+	SideSlope       sig6         `json:"side_slope"`
+	Roughness       sig6         `json:"roughness"`
+	Slope           sig6         `json:"slope"`
+	MaxVelocity     *sig6        `json:"max_velocity,omitempty"`
+	MinVelocity     *sig6        `json:"min_velocity,omitempty"`
+	MaxSlope        *sig6        `json:"max_slope,omitempty"`
+	MinSlope        *sig6        `json:"min_slope,omitempty"`
+	NormalDepth     sig6         `json:"normal_depth"`
+	CriticalDepth   sig6         `json:"critical_depth"`
+	Velocity        sig6         `json:"velocity"`
+	Froude          sig6         `json:"froude"`
+	Regime          string       `json:"regime"`
+	Area            sig6         `json:"area"`
+	WettedPerimeter sig6         `json:"wetted_perimeter"`
+	TopWidth        sig6         `json:"top_width"`
+	HydraulicRadius sig6         `json:"hydraulic_radius"`
+	HydraulicDepth  sig6         `json:"hydraulic_depth"`
+	SpecificEnergy  sig6         `json:"specific_energy"`
+	Freeboard       sig6         `json:"freeboard"`
+	FreeboardRule   string       `json:"freeboard_rule"`
+	BankHeight      sig6         `json:"bank_height"`
+	ProfileType     string       `json:"profile_type,omitempty"`
+	Profile         []profileRow `json:"profile,omitempty"`
+	Warnings        []string     `json:"warnings"`
+}
+
+// profileRow is one station of the water-surface profile above a control.
+type profileRow struct {
+	Chainage  sig6 `json:"chainage"` // negative upstream of the control at 0
+	Depth     sig6 `json:"depth"`
+	Velocity  sig6 `json:"velocity"`
+	Froude    sig6 `json:"froude"`
+	Freeboard sig6 `json:"freeboard"` // below the top of bank set for normal depth
 }
 
 // runSection implements `canalstep section`: uniform flow in one canal
@@ -171,6 +183,9 @@ func runSection(_ context.Context, args []string, stdout, _ io.Writer) error {
 	fbFixed := fs.Float64("freeboard", 0, "fixed freeboard (m or ft) instead of the USBR rule")
 	fbC := fs.Float64("freeboard-c", 0, "fixed USBR coefficient C in F = sqrt(C·y) (m or ft) instead of interpolating it from the discharge")
 	fbMin := fs.Float64("min-freeboard", 0, "lower bound on the freeboard (m or ft)")
+	profFrom := fs.String("profile-from", "", "also compute the water-surface profile upstream of a control holding this depth (m or ft), or 'critical' for a free overfall; standard step method")
+	profLen := fs.Float64("profile-length", 2000, "length of the profile upstream of the control (m or ft)")
+	profStep := fs.Float64("profile-step", 100, "station interval of the profile (m or ft)")
 	var of outputFlags
 	u, ok, err := of.parseCommand(fs, args, stdout,
 		"canalstep section --flow Q --bottom-width B --side-slope Z --roughness N (--slope S | --max-velocity V) [--min-velocity V] [--units si|us] [--json]",
@@ -188,7 +203,7 @@ func runSection(_ context.Context, args []string, stdout, _ io.Writer) error {
 		return usagef("section: give --min-velocity or --kennedy-m, not both")
 	}
 	if err := checkNumbers(fs,
-		append([]string{"flow", "max-velocity", "kennedy-m", "max-froude", "freeboard", "freeboard-c"}, canalPositive...),
+		append([]string{"flow", "max-velocity", "kennedy-m", "max-froude", "freeboard", "freeboard-c", "profile-length", "profile-step"}, canalPositive...),
 		append([]string{"min-velocity", "min-freeboard"}, canalNonNegative...)); err != nil {
 		return err
 	}
@@ -253,6 +268,11 @@ func runSection(_ context.Context, args []string, stdout, _ io.Writer) error {
 	res.SpecificEnergy = sig6(hydraulics.SpecificEnergy(c, s, q, yn) / lm)
 	res.Freeboard, res.BankHeight = sig6(fb/lm), sig6((yn+fb)/lm)
 	res.FreeboardRule = freeboardRuleText(rule, q, u)
+	if *profFrom != "" {
+		if err := addProfile(&res, c, ch, q, yc, yn+fb, *profFrom, *profLen*lm, *profStep*lm, u); err != nil {
+			return err
+		}
+	}
 	if f > *maxFroude {
 		res.Warnings = append(res.Warnings, fmt.Sprintf("Froude number %.2f is above %.2f: near-critical flow is wavy and unstable; flatten the slope or widen the bed", f, *maxFroude))
 	}
@@ -400,6 +420,71 @@ func printSection(w io.Writer, r sectionResult, u report.Units) error {
 		return err
 	}
 	fmt.Fprintf(w, "Freeboard rule: %s.\n", r.FreeboardRule)
+	if len(r.Profile) > 0 {
+		fmt.Fprintf(w, "Water-surface profile (%s), standard step upstream of the control at chainage 0:\n", r.ProfileType)
+		tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+		fmt.Fprintf(tw, "  chainage (%s)\tdepth (%s)\tvelocity (%s)\tFroude\tfreeboard (%s)\t\n", L, L, V, L)
+		for _, p := range r.Profile {
+			fmt.Fprintf(tw, "  %.1f\t%.3f\t%.3f\t%.3f\t%.3f\t\n", float64(p.Chainage), float64(p.Depth), float64(p.Velocity), float64(p.Froude), float64(p.Freeboard))
+		}
+		if err := tw.Flush(); err != nil {
+			return err
+		}
+	}
 	writeWarnings(w, r.Warnings)
+	return nil
+}
+
+// addProfile computes the standard-step profile from a control depth (a
+// number in the output length unit, or "critical") over length metres at
+// step-metre stations, against a top of bank bank metres above the bed.
+func addProfile(res *sectionResult, c hydraulics.Consts, ch hydraulics.Channel, q, yc, bank float64, from string, length, step float64, u report.Units) error {
+	lm := unitLength(u)
+	start := yc
+	if !strings.EqualFold(from, "critical") {
+		v, err := strconv.ParseFloat(from, 64)
+		if err != nil || !(v > 0) || math.IsInf(v, 0) {
+			return usagef("--profile-from must be a positive depth or 'critical', got %q", from)
+		}
+		start = v * lm
+		if start < yc {
+			return usagef("--profile-from %g %s is below the critical depth %.3f %s: the profile would be supercritical", v, u.LengthUnit(), yc/lm, u.LengthUnit())
+		}
+	}
+	if length/step > 100000 {
+		return usagef("--profile-length / --profile-step gives more than 100000 stations")
+	}
+	var chainages []float64
+	for x := -length; x < -1e-9*length; x += step {
+		chainages = append(chainages, x)
+	}
+	chainages = append(chainages, 0)
+	pts, err := hydraulics.WaterSurfaceProfile(c, ch, q, start, chainages, bank)
+	if err != nil {
+		return sectionError(err)
+	}
+	yn, _ := hydraulics.NormalDepth(c, ch.Section, q, ch.N, ch.Slope)
+	switch {
+	case start > yn*(1+1e-9):
+		res.ProfileType = "M1 backwater"
+	case start < yn*(1-1e-9):
+		res.ProfileType = "M2 drawdown"
+	default:
+		res.ProfileType = "uniform"
+	}
+	if yn < yc {
+		res.ProfileType = "steep-slope profile"
+	}
+	overtopped := false
+	for _, p := range pts {
+		res.Profile = append(res.Profile, profileRow{
+			Chainage: sig6(p.Chainage / lm), Depth: sig6(p.Depth / lm), Velocity: sig6(p.Velocity / lm),
+			Froude: sig6(p.Froude), Freeboard: sig6(p.Freeboard / lm),
+		})
+		overtopped = overtopped || p.Freeboard < 0
+	}
+	if overtopped {
+		res.Warnings = append(res.Warnings, "the water-surface profile rises above the top of bank: the banks are overtopped")
+	}
 	return nil
 }

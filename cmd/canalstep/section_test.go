@@ -182,3 +182,35 @@ func TestSectionGolden(t *testing.T) {
 	}
 	checkGolden(t, "section_us.txt", []byte(out))
 }
+
+// TestSectionProfile: the M2 drawdown above a free overfall in SI-1 reaches
+// 0.99·yn = 1.4811 m at 2,098.9 m (reference sheet §5.4 T5-2, [C]; ±2 mm),
+// computed here with 500 m stations that the profile refines itself. A
+// control below critical depth is a usage error.
+func TestSectionProfile(t *testing.T) {
+	m := runJSON(t, withArgs(si1Args, "--profile-from", "critical", "--profile-length", "2098.9", "--profile-step", "500")...)
+	prof, ok := m["profile"].([]any)
+	if !ok || len(prof) != 6 {
+		t.Fatalf("profile = %v", m["profile"])
+	}
+	first := prof[0].(map[string]any)
+	if c, d := getNum(t, first, "chainage"), getNum(t, first, "depth"); c != -2098.9 || math.Abs(d-1.4811) > 2e-3 {
+		t.Errorf("profile starts at %v m with depth %v m, want -2098.9 m and 1.4811 m", c, d)
+	}
+	last := prof[len(prof)-1].(map[string]any)
+	if d := getNum(t, last, "depth"); math.Abs(d-0.8916) > 1e-4 {
+		t.Errorf("control depth %v m, want critical 0.8916 m", d)
+	}
+	if m["profile_type"] != "M2 drawdown" {
+		t.Errorf("profile type %v", m["profile_type"])
+	}
+	m = runJSON(t, withArgs(si1Args, "--profile-from", "2.0", "--profile-length", "1000", "--profile-step", "250")...)
+	if m["profile_type"] != "M1 backwater" {
+		t.Errorf("profile type %v, want M1 backwater", m["profile_type"])
+	}
+	for _, bad := range []string{"0.5", "deep", "-1"} {
+		if _, errs, code := runCmd(t, withArgs(si1Args, "--profile-from", bad)...); code != 2 {
+			t.Errorf("--profile-from %s: exit %d (%s), want 2", bad, code, errs)
+		}
+	}
+}

@@ -74,3 +74,19 @@ func BenchmarkStandardStep(b *testing.B) {
 		sink += depths[0]
 	}
 }
+
+// BenchmarkWaterSurfaceProfile: the refined M2 drawdown above a free
+// overfall over 2 km at 100 m stations.
+func BenchmarkWaterSurfaceProfile(b *testing.B) {
+	c := SI()
+	yc, _ := CriticalDepth(c, si1.Section, 10)
+	st := stationsEvery(2000, 100)
+	b.ReportAllocs()
+	for b.Loop() {
+		pts, err := WaterSurfaceProfile(c, si1, 10, yc, st, 2.5)
+		if err != nil {
+			b.Fatal(err)
+		}
+		sink += pts[0].Depth
+	}
+}

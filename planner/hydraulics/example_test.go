@@ -227,8 +227,8 @@ func ExampleWaterSurfaceProfile() {
 		fmt.Printf("%6.0f m: depth %.3f m, V %.3f m/s, F %.2f, freeboard %.3f m\n", p.Chainage, p.Depth, p.Velocity, p.Froude, p.Freeboard)
 	}
 	// Output:
-	//  -1000 m: depth 1.452 m, V 1.330 m/s, F 0.42, freeboard 0.748 m
-	//   -300 m: depth 1.321 m, V 1.519 m/s, F 0.50, freeboard 0.879 m
-	//    -50 m: depth 1.132 m, V 1.880 m/s, F 0.66, freeboard 1.068 m
+	//  -1000 m: depth 1.431 m, V 1.357 m/s, F 0.43, freeboard 0.769 m
+	//   -300 m: depth 1.294 m, V 1.564 m/s, F 0.52, freeboard 0.906 m
+	//    -50 m: depth 1.100 m, V 1.955 m/s, F 0.69, freeboard 1.100 m
 	//      0 m: depth 0.892 m, V 2.586 m/s, F 1.00, freeboard 1.308 m
 }

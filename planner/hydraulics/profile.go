@@ -14,9 +14,12 @@ import (
 //
 //	z_u + y_u + α·V_u²/2g = z_d + y_d + α·V_d²/2g + ½·(Sf_u + Sf_d)·Δx
 //
-// for y_u on the subcritical branch (y_u > yc). The depths returned line up
-// with chainages. It panics if chainages do not increase (programmer error)
-// and returns an error wrapping [ErrInfeasible] when a step has no
+// for y_u on the subcritical branch (y_u > yc), one step per pair of
+// stations, exactly as the hand method does. Its accuracy depends on the
+// spacing: near critical depth the profile is steep and needs short steps.
+// [WaterSurfaceProfile] refines the steps itself. The depths returned line
+// up with chainages. It panics if chainages do not increase (programmer
+// error) and returns an error wrapping [ErrInfeasible] when a step has no
 // subcritical solution (the profile would pass through critical depth).
 func StandardStep(c Consts, ch Channel, q float64, startDepth float64, chainages []float64) ([]float64, error) {
 	depths := make([]float64, len(chainages))
@@ -26,6 +29,12 @@ func StandardStep(c Consts, ch Channel, q float64, startDepth float64, chainages
 // StandardStepInto is [StandardStep] writing into depths, which must be as
 // long as chainages; it does not allocate.
 func StandardStepInto(c Consts, ch Channel, q float64, startDepth float64, chainages, depths []float64) error {
+	return stepProfile(c, ch, q, startDepth, chainages, depths, false)
+}
+
+// stepProfile runs the standard step over chainages into depths; with
+// refine, each interval is divided adaptively (see stepper.refined).
+func stepProfile(c Consts, ch Channel, q float64, startDepth float64, chainages, depths []float64, refine bool) error {
 	if len(depths) != len(chainages) {
 		panic("hydraulics: StandardStepInto: depths and chainages differ in length")
 	}
@@ -50,43 +59,80 @@ func StandardStepInto(c Consts, ch Channel, q float64, startDepth float64, chain
 	if !(startDepth >= yc*(1-1e-9)) || math.IsInf(startDepth, 0) {
 		return fmt.Errorf("%w: start depth %g m is below critical depth %.4g m; the standard step here follows subcritical profiles only", ErrInvalid, startDepth, yc)
 	}
-	s := ch.Section
+	st := stepper{c: c, ch: ch, q: q, yc: yc}
+	last := len(chainages) - 1
+	depths[last] = startDepth
+	for i := last - 1; i >= 0; i-- {
+		dx := chainages[i+1] - chainages[i]
+		var y float64
+		if refine {
+			y, err = st.refined(depths[i+1], dx, 0)
+		} else {
+			y, err = st.step(depths[i+1], dx)
+		}
+		if err != nil {
+			return fmt.Errorf("standard step from chainage %.3f m to %.3f m: %w", chainages[i+1], chainages[i], err)
+		}
+		depths[i] = y
+	}
+	return nil
+}
+
+// stepper takes standard steps upstream in one channel at one discharge.
+type stepper struct {
+	c     Consts
+	ch    Channel
+	q, yc float64
+}
+
+// step returns the depth a distance dx upstream of depth yd (one step).
+func (st stepper) step(yd, dx float64) (float64, error) {
+	c, s, q, n := st.c, st.ch.Section, st.q, st.ch.N
 	a := c.alpha()
 	b, z := s.BottomWidth, s.SideSlope
 	dp := 2 * math.Sqrt(1+z*z)
-	last := len(chainages) - 1
-	depths[last] = startDepth
-	yd := startDepth
-	for i := last - 1; i >= 0; i-- {
-		dx := chainages[i+1] - chainages[i]
-		// Head to match at the upstream section, measured from its bed.
-		target := SpecificEnergy(c, s, q, yd) + 0.5*FrictionSlope(c, s, q, ch.N, yd)*dx - ch.Slope*dx
-		f := func(y float64) (float64, float64) {
-			ar := (b + z*y) * y
-			t := b + 2*z*y
-			p := b + dp*y
-			v := q / ar
-			sf := FrictionSlope(c, s, q, ch.N, y)
-			dE := 1 - a*v*v*t/(c.G*ar)
-			dSf := -2 * sf * (5*t/(3*ar) - 2*dp/(3*p))
-			return y + a*v*v/(2*c.G) - 0.5*sf*dx - target, dE - 0.5*dx*dSf
-		}
-		if f0, _ := f(yc); f0 > 0 {
-			return fmt.Errorf("%w: no subcritical depth at chainage %.3f m: the profile reaches critical depth between %.3f and %.3f m",
-				ErrInfeasible, chainages[i], chainages[i], chainages[i+1])
-		}
-		hi, err := expandUp(math.Max(yd, yc)*1.5, func(y float64) float64 { v, _ := f(y); return v })
-		if err != nil {
-			return err
-		}
-		y, err := solveBracket(yc, hi, 1e-13*hi, f)
-		if err != nil {
-			return fmt.Errorf("standard step at chainage %.3f m: %w", chainages[i], err)
-		}
-		depths[i] = y
-		yd = y
+	// Head to match at the upstream section, measured from its bed.
+	target := SpecificEnergy(c, s, q, yd) + 0.5*FrictionSlope(c, s, q, n, yd)*dx - st.ch.Slope*dx
+	f := func(y float64) (float64, float64) {
+		ar := (b + z*y) * y
+		t := b + 2*z*y
+		p := b + dp*y
+		v := q / ar
+		sf := FrictionSlope(c, s, q, n, y)
+		dE := 1 - a*v*v*t/(c.G*ar)
+		dSf := -2 * sf * (5*t/(3*ar) - 2*dp/(3*p))
+		return y + a*v*v/(2*c.G) - 0.5*sf*dx - target, dE - 0.5*dx*dSf
 	}
-	return nil
+	if f0, _ := f(st.yc); f0 > 0 {
+		return 0, fmt.Errorf("%w: no subcritical depth: the profile reaches critical depth", ErrInfeasible)
+	}
+	hi, err := expandUp(math.Max(yd, st.yc)*1.5, func(y float64) float64 { v, _ := f(y); return v })
+	if err != nil {
+		return 0, err
+	}
+	return solveBracket(st.yc, hi, 1e-13*hi, f)
+}
+
+// refined steps dx upstream from yd by step doubling: it compares one step
+// with two half steps and halves the interval until they agree within
+// 1e-7 of the depth (depth ≥ 1) or 1e-7 absolute, at most 30 levels deep.
+func (st stepper) refined(yd, dx float64, level int) (float64, error) {
+	one, err1 := st.step(yd, dx)
+	mid, err := st.step(yd, dx/2)
+	if err != nil {
+		return 0, err
+	}
+	two, err := st.step(mid, dx/2)
+	if err != nil {
+		return 0, err
+	}
+	if err1 == nil && math.Abs(one-two) <= 1e-7*math.Max(1, two) || level >= 30 {
+		return two, nil
+	}
+	if mid, err = st.refined(yd, dx/2, level+1); err != nil {
+		return 0, err
+	}
+	return st.refined(mid, dx/2, level+1)
 }
 
 // DirectStep returns the distance (m) from the first depth to each depth of
@@ -129,12 +175,15 @@ type ProfilePoint struct {
 	Freeboard float64 // bank height minus depth, m (negative: overtopped)
 }
 
-// WaterSurfaceProfile runs [StandardStep] and adds the velocity, Froude
-// number and remaining freeboard below a top of bank bankHeight (m above
-// the bed) at each station.
+// WaterSurfaceProfile computes the subcritical profile of [StandardStep]
+// at the given stations, dividing each interval adaptively (step doubling)
+// until the depth no longer changes (1e-7 relative), so the result does not
+// depend on the station spacing, even in the steep drawdown just above a
+// free overfall. It adds the velocity, Froude number and remaining freeboard
+// below a top of bank bankHeight (m above the bed) at each station.
 func WaterSurfaceProfile(c Consts, ch Channel, q, startDepth float64, chainages []float64, bankHeight float64) ([]ProfilePoint, error) {
-	depths, err := StandardStep(c, ch, q, startDepth, chainages)
-	if err != nil {
+	depths := make([]float64, len(chainages))
+	if err := stepProfile(c, ch, q, startDepth, chainages, depths, true); err != nil {
 		return nil, err
 	}
 	pts := make([]ProfilePoint, len(depths))

@@ -192,6 +192,33 @@ func TestStandardStepErrors(t *testing.T) {
 	StandardStep(c, si1, 10, 2, []float64{0, -10})
 }
 
+// TestWaterSurfaceProfileRefines: with stations 500 m apart, the refined
+// profile of the M2 drawdown above a free overfall still reaches 0.99·yn at
+// the 2,098.9 m the sheet computes with fine steps (§5.4 T5-2, [C]; 2 mm),
+// and agrees with the fine direct step at an intermediate station (1 mm).
+// A single standard step over the same 500 m from critical depth does not
+// (it overshoots normal depth), which is why the refinement exists.
+func TestWaterSurfaceProfileRefines(t *testing.T) {
+	c := SI()
+	yc, _ := CriticalDepth(c, si1.Section, 10)
+	yn, _ := NormalDepth(c, si1.Section, 10, si1.N, si1.Slope)
+	st := []float64{-2098.9, -1500, -1000, -500, 0}
+	pts, err := WaterSurfaceProfile(c, si1, 10, yc, st, 2.5)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if math.Abs(pts[0].Depth-0.99*yn) > 2e-3 {
+		t.Errorf("depth at %.1f m = %.4f m, want 0.99·yn = %.4f", st[0], pts[0].Depth, 0.99*yn)
+	}
+	if x := fineLength(t, c, si1, 10, yc, pts[2].Depth, yn); math.Abs(x+1000) > 5 {
+		t.Errorf("fine direct step puts depth %.4f m at %.1f m, profile at -1000 m", pts[2].Depth, x)
+	}
+	coarse, err := StandardStep(c, si1, 10, yc, st)
+	if err == nil && coarse[3] < yn {
+		t.Errorf("single 500 m step from yc gave %.4f m below yn: expected the coarse overshoot this test documents", coarse[3])
+	}
+}
+
 func TestWaterSurfaceProfile(t *testing.T) {
 	c := SI()
 	pts, err := WaterSurfaceProfile(c, si1, 10, 2.0, stationsEvery(1000, 250), 2.5)
