@@ -534,3 +534,35 @@ func groupThousands(v float64, prec int) string {
 	}
 	return b.String()
 }
+
+// legendBackdrop whitens the area under the legend so that lines passing
+// behind it do not cross its text. Add it last: gonum/plot draws plotters in
+// order and the legend after all of them.
+type legendBackdrop struct{}
+
+// Plot implements plot.Plotter.
+func (legendBackdrop) Plot(c draw.Canvas, p *plot.Plot) {
+	// Legend.Rectangle gives the right size but mirrors Left and ignores
+	// the offsets, so place the box as Legend.Draw places the entries.
+	l := &p.Legend
+	size := l.Rectangle(c).Size()
+	var r vg.Rectangle
+	if l.Left {
+		r.Min.X = c.Min.X + l.XOffs
+		r.Max.X = r.Min.X + size.X
+	} else {
+		r.Max.X = c.Max.X + l.XOffs
+		r.Min.X = r.Max.X - size.X
+	}
+	if l.Top {
+		r.Max.Y = c.Max.Y + l.YOffs
+		r.Min.Y = r.Max.Y - size.Y
+	} else {
+		r.Min.Y = c.Min.Y + l.YOffs
+		r.Max.Y = r.Min.Y + size.Y
+	}
+	pad := vg.Points(2)
+	r.Min.X, r.Min.Y, r.Max.X, r.Max.Y = r.Min.X-pad, r.Min.Y-pad, r.Max.X+pad, r.Max.Y+pad
+	c.SetColor(color.NRGBA{R: 255, G: 255, B: 255, A: 215})
+	c.Fill(r.Path())
+}

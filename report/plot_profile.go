@@ -86,6 +86,7 @@ func RenderGroundProfile(w io.Writer, format string, g GroundProfile) error {
 	}
 	dc, _ := layout(p, nil, draw.New(c))
 	p.Title.Text = fmt.Sprintf("Ground profile: %s (vertical exaggeration %s×)", g.Name, roundVE(exaggeration(p, dc)))
+	p.Add(legendBackdrop{})
 	p.Draw(dc)
 	if _, err := c.WriteTo(w); err != nil {
 		return fmt.Errorf("%s: %w", what, err)

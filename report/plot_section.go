@@ -246,6 +246,10 @@ func RenderLongSection(w io.Writer, format string, s LongSection) error {
 		}
 	}
 	p.Title.Text = fmt.Sprintf("Long section: %s (vertical exaggeration %s×)", s.Name, roundVE(exaggeration(p, top)))
+	p.Add(legendBackdrop{})
+	if q != nil {
+		q.Add(legendBackdrop{})
+	}
 
 	p.Draw(top)
 	if q != nil {
