@@ -7,6 +7,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"strings"
+	"sync"
 	"testing"
 
 	"gonum.org/v1/plot/plotter"
@@ -408,4 +409,32 @@ func FuzzLongSection(f *testing.F) {
 		}
 		_ = RenderLongSection(io.Discard, "svg", s)
 	})
+}
+
+// TestPlotsConcurrent renders plots from several goroutines at once, as a
+// batch run does; under -race it shows the plots share no unguarded state.
+func TestPlotsConcurrent(t *testing.T) {
+	t.Parallel()
+	s := testSection(101, 1000)
+	s.Width, s.Height = 10, 7
+	x, z := testGround(101, 1000, true)
+	c := testAlternatives()
+	c.Width, c.Height = 8, 6
+	var wg sync.WaitGroup
+	errs := make(chan error, 12)
+	for i := range 4 {
+		format := []string{"png", "svg"}[i%2]
+		wg.Go(func() {
+			errs <- RenderLongSection(io.Discard, format, s)
+			errs <- RenderGroundProfile(io.Discard, format, GroundProfile{Name: "g", Chainage: x, Ground: z, Width: 10, Height: 6})
+			errs <- RenderAlternativesChart(io.Discard, format, c)
+		})
+	}
+	wg.Wait()
+	close(errs)
+	for err := range errs {
+		if err != nil {
+			t.Error(err)
+		}
+	}
 }
