@@ -51,6 +51,13 @@ type dropFlowResult struct {
 	Warnings           []string `json:"warnings"`
 }
 
+// notchResult is a trapezoidal control notch in the crest.
+type notchResult struct {
+	SillWidth   sig6 `json:"sill_width"`
+	SideFlare   sig6 `json:"side_flare"` // horizontal per vertical
+	Coefficient sig6 `json:"discharge_coefficient"`
+}
+
 // dropResult is the JSON output of `canalstep drop`, in the units of
 // --units (lengths m or ft, discharge m³/s or cfs).
 type dropResult struct {
@@ -83,6 +90,9 @@ type dropResult struct {
 	EndSill           sig6             `json:"end_sill"`
 	SAFBasinLength    sig6             `json:"saf_basin_length"`
 	SAFMinTailwater   sig6             `json:"saf_min_tailwater"`
+	WallHeight        sig6             `json:"wall_height"`
+	TransitionLength  sig6             `json:"transition_length"`
+	Notch             *notchResult     `json:"notch,omitempty"`
 	TailwaterDepth    sig6             `json:"tailwater_depth"`
 	JumpState         string           `json:"jump_state"`
 	FallLoss          sig6             `json:"fall_loss"`
@@ -108,6 +118,7 @@ func runDrop(_ context.Context, args []string, stdout, _ io.Writer) error {
 	holdRatio := fs.Float64("hold-ratio", hydraulics.DefaultSmallMarginRatio, "tailwater / required sequent depth the basin floor is designed for (1.10: common practice)")
 	crestRaise := fs.Float64("crest-raise", 0, "fix the crest height above the upstream bed (m or ft) instead of designing it")
 	depression := fs.Float64("depression", 0, "fix the basin floor depression below the downstream bed (m or ft) instead of designing it")
+	notchCd := fs.Float64("notch-cd", 0, "also design a trapezoidal control notch that holds normal depth at 100 % and 50 % of the design flow, with this calibrated discharge coefficient (no default: take it from a calibrated source)")
 	var of outputFlags
 	u, ok, err := of.parseCommand(fs, args, stdout,
 		"canalstep drop --flow Q --width B --height H --bottom-width B --side-slope Z --roughness N --slope S [--transition TYPE] [--flows 0.25,0.5,1] [--units si|us] [--json]",
@@ -119,7 +130,7 @@ func runDrop(_ context.Context, args []string, stdout, _ io.Writer) error {
 		return err
 	}
 	if err := checkNumbers(fs,
-		append([]string{"flow", "width", "height", "hold-ratio"}, canalPositive...),
+		append([]string{"flow", "width", "height", "hold-ratio", "notch-cd"}, canalPositive...),
 		append([]string{"crest-raise", "depression"}, canalNonNegative...)); err != nil {
 		return err
 	}
@@ -172,12 +183,20 @@ func runDrop(_ context.Context, args []string, stdout, _ io.Writer) error {
 		SequentDepth: sig6(d.SequentDepth / lm), BelangerSequent: sig6(d.BelangerDepth / lm),
 		JumpLength: sig6(d.JumpLength / lm), BasinLength: sig6(d.BasinLength / lm), EndSill: sig6(d.EndSill / lm),
 		SAFBasinLength: sig6(d.SAFBasinLength / lm), SAFMinTailwater: sig6(d.SAFMinTailwater / lm),
+		WallHeight: sig6(d.WallHeight / lm), TransitionLength: sig6(d.TransitionLength / lm),
 		TailwaterDepth: sig6(d.TailwaterDepth / lm), JumpState: string(d.JumpState),
 		FallLoss: sig6(d.FallLoss / lm), JumpLoss: sig6(d.JumpLoss / lm), EnergyLoss: sig6(d.EnergyLoss / lm),
 		// P = ρ·g·Q·ΔH with ρ = 1000 kg/m³ (reference sheet §3.4).
 		DissipatedPowerKW: sig6(1000 * c.G * q * d.EnergyLoss / 1000),
 		Warnings:          append([]string{}, d.Warnings...),
 		SafetyNotice:      report.SafetyNotice,
+	}
+	if fs.Changed("notch-cd") {
+		nt, err := hydraulics.DesignNotch(c, in.Downstream, q, q/2, *notchCd)
+		if err != nil {
+			return fmt.Errorf("drop: control notch: %w", err)
+		}
+		res.Notch = &notchResult{SillWidth: sig6(nt.SillWidth / lm), SideFlare: sig6(nt.SideFlare), Coefficient: sig6(*notchCd)}
 	}
 	for _, f := range fractions {
 		o, err := hydraulics.CheckOutlet(c, d, in, f*q)
@@ -211,6 +230,9 @@ func printDrop(w io.Writer, r dropResult, u report.Units) error {
 			t.add("downstream normal depth", "%.3f %s", float64(r.DownstreamDepth), L)
 			t.add("crest raise above upstream bed", "%.3f %s", float64(r.CrestRaise), L)
 			t.add("control width at bed level", "%.3f %s", float64(r.ControlWidth), L)
+			if r.Notch != nil {
+				t.add("or a control notch (Cd "+fmt.Sprintf("%.3g", float64(r.Notch.Coefficient))+")", "sill %.3f %s wide, sides %.3f H : 1 V", float64(r.Notch.SillWidth), L, float64(r.Notch.SideFlare))
+			}
 		}},
 		{"Drop (Rand 1955)", func(t *table) {
 			t.add("drop height, crest to basin floor", "%.3f %s", float64(r.DropHeight), L)
@@ -230,6 +252,8 @@ func printDrop(w io.Writer, r dropResult, u report.Units) error {
 			t.add("end sill height (0.4 yc)", "%.3f %s", float64(r.EndSill), L)
 			t.add("SAF basin alternative: length", "%.3f %s, tailwater at least %.3f %s", float64(r.SAFBasinLength), L, float64(r.SAFMinTailwater), L)
 			t.add("tailwater at design flow", "%.3f %s (%s)", float64(r.TailwaterDepth), L, r.JumpState)
+			t.add("side walls above floor (TW + 0.85 yc)", "%.3f %s", float64(r.WallHeight), L)
+			t.add("outlet transition length (12.5°)", "%.3f %s", float64(r.TransitionLength), L)
 		}},
 		{"Energy", func(t *table) {
 			t.add("lost in the fall and pool", "%.3f %s", float64(r.FallLoss), L)

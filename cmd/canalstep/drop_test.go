@@ -179,3 +179,25 @@ func FuzzParseFlows(f *testing.F) {
 		}
 	})
 }
+
+// TestDropNotch: the control notch for SI-1 matching normal depth at 10 and
+// 5 m³/s with the sheet's placeholder Cd = 0.70 (not a calibrated value) has
+// a 1.4490 m sill and sides 0.9982 H:V (reference sheet §4.5 T4-3, [C];
+// 1e-4 relative, the JSON keeps 6 figures). Without --notch-cd there is no
+// notch: the coefficient has no default.
+func TestDropNotch(t *testing.T) {
+	m := runJSON(t, withArgs(t42Args, "--notch-cd", "0.70")...)
+	n, ok := m["notch"].(map[string]any)
+	if !ok {
+		t.Fatalf("no notch in %v", m)
+	}
+	if w, f := getNum(t, n, "sill_width"), getNum(t, n, "side_flare"); math.Abs(w-1.4490) > 1e-4*1.449 || math.Abs(f-0.9982) > 1e-4 {
+		t.Errorf("notch sill %v m, sides %v; sheet 1.4490 m, 0.9982", w, f)
+	}
+	if _, ok := runJSON(t, t42Args...)["notch"]; ok {
+		t.Error("notch designed without a coefficient")
+	}
+	if _, _, code := runCmd(t, withArgs(t42Args, "--notch-cd", "0")...); code != 2 {
+		t.Errorf("--notch-cd 0: exit %d, want 2", code)
+	}
+}

@@ -139,6 +139,20 @@ func JumpLengthUSBR(y2 float64) float64 { return 6.1 * y2 }
 // Div. ASCE 90(HY1); from memory, unverified).
 func JumpLengthSilvester(y1, f1 float64) float64 { return 9.75 * y1 * math.Pow(f1-1, 1.01) }
 
+// DefaultTransitionAngle is the angle (degrees) between the water-surface
+// edge and the centre line of a transition that Hinds and USBR practice
+// limit it to, about 12.5° (from memory, unverified; an Indian code summary
+// gives a 1 in 5 splay for expansions, 11.3°).
+const DefaultTransitionAngle = 12.5
+
+// TransitionLength returns the length (m) of a straight transition that
+// changes the top width by deltaT (m, either sign) with each side at
+// angleDeg degrees to the centre line: L = |ΔT| / (2·tan θ) (reference
+// sheet §4.1, derived).
+func TransitionLength(deltaT, angleDeg float64) float64 {
+	return math.Abs(deltaT) / (2 * math.Tan(angleDeg*math.Pi/180))
+}
+
 // CrestRaise returns the height p (m) of a rectangular crest above the
 // upstream bed that makes the upstream specific energy equal upstreamEnergy
 // (m) when critical depth yc (m) forms on the crest: p = E − 1.5·yc
@@ -174,6 +188,9 @@ type DropInput struct {
 	HoldRatio float64
 	// SmallMarginRatio and DrownedRatio classify the jump (0: defaults).
 	SmallMarginRatio, DrownedRatio float64
+	// TransitionAngle is the angle (degrees) between the water-surface edge
+	// and the centre line of the outlet transition; 0 means 12.5°.
+	TransitionAngle float64
 	// MaxApproachFroude is the approach Froude number above which the
 	// upstream flow counts as near critical; 0 means NearCriticalFroude.
 	MaxApproachFroude float64
@@ -210,21 +227,23 @@ type Drop struct {
 	DropHeight      float64 // h = Δ + p + d_s: crest to basin floor, m
 	ControlWidth    float64 // width of a bed-level crest that would hold upstream normal depth, m
 
-	DropNumber      float64 // D_N = q²/(g·h³)
-	CriticalDepth   float64 // yc on the crest, m
-	BrinkDepth      float64 // ≈ 0.715·yc at the brink (Rouse 1936, from memory), m
-	ImpactLength    float64 // Ld: wall to the toe of the jump (Rand), m
-	PoolDepth       float64 // yp (Rand), m
-	ToeDepth        float64 // y1 (Rand), m
-	ToeFroude       float64 // F1 at the toe
-	JumpType        string  // by F1, see JumpType
-	SequentDepth    float64 // y2 required (Rand), m
-	BelangerDepth   float64 // Belanger sequent of Rand's y1, m (cross-check of SequentDepth)
-	JumpLength      float64 // 6.9·(y2 − y1), m
-	BasinLength     float64 // plain basin Ld + Lj, m
-	EndSill         float64 // end sill height 0.4·yc (SAF rule, from memory), m
-	SAFBasinLength  float64 // SAF straight-drop basin Ld + 2.55·yc (Donnelly & Blaisdell 1954, from memory), m
-	SAFMinTailwater float64 // SAF minimum tailwater 2.15·yc, m
+	DropNumber       float64 // D_N = q²/(g·h³)
+	CriticalDepth    float64 // yc on the crest, m
+	BrinkDepth       float64 // ≈ 0.715·yc at the brink (Rouse 1936, from memory), m
+	ImpactLength     float64 // Ld: wall to the toe of the jump (Rand), m
+	PoolDepth        float64 // yp (Rand), m
+	ToeDepth         float64 // y1 (Rand), m
+	ToeFroude        float64 // F1 at the toe
+	JumpType         string  // by F1, see JumpType
+	SequentDepth     float64 // y2 required (Rand), m
+	BelangerDepth    float64 // Belanger sequent of Rand's y1, m (cross-check of SequentDepth)
+	JumpLength       float64 // 6.9·(y2 − y1), m
+	BasinLength      float64 // plain basin Ld + Lj, m
+	EndSill          float64 // end sill height 0.4·yc (SAF rule, from memory), m
+	SAFBasinLength   float64 // SAF straight-drop basin Ld + 2.55·yc (Donnelly & Blaisdell 1954, from memory), m
+	SAFMinTailwater  float64 // SAF minimum tailwater 2.15·yc, m
+	WallHeight       float64 // basin side walls above the floor: design tailwater + 0.85·yc (SAF rule, from memory), m
+	TransitionLength float64 // outlet transition from basin width to the canal's top width at normal depth, m (see TransitionLength)
 
 	UpstreamDepth   float64 // normal depth of the upstream canal, m
 	DownstreamDepth float64 // normal depth of the downstream canal, m
@@ -383,6 +402,8 @@ func DesignDrop(c Consts, in DropInput) (Drop, error) {
 		return Drop{}, err
 	}
 	d.TailwaterDepth, d.TailwaterRatio, d.JumpState = chk.TailwaterDepth, chk.TailwaterRatio, chk.JumpState
+	d.WallHeight = chk.TailwaterDepth + 0.85*g.CriticalDepth
+	d.TransitionLength = TransitionLength(in.Downstream.Section.TopWidth(d.DownstreamDepth)-in.CrestWidth, orDefault(in.TransitionAngle, DefaultTransitionAngle))
 	d.Outlet = chk
 	return d, nil
 }

@@ -433,3 +433,24 @@ func TestJumpLengths(t *testing.T) {
 		t.Error("jump types by F1 do not follow the USBR bands (Chow 1959 Ch. 15, from memory)")
 	}
 }
+
+// TestTransitionLengthAndWalls: L = ΔT/(2·tan θ) (sheet §4.1, derived): a
+// 1 in 5 splay on each side (tan θ = 0.2) over ΔT = 4 m is 10 m; the T4-2
+// drop's outlet widens from 3 m to the SI-1 top width 7.488 m at 12.5°, and
+// its walls stand 0.85·yc above the design tailwater (SAF rule, from memory).
+func TestTransitionLengthAndWalls(t *testing.T) {
+	if l := TransitionLength(4, math.Atan(0.2)*180/math.Pi); math.Abs(l-10) > 1e-12 {
+		t.Errorf("1 in 5 splay over 4 m: %.12g m, want 10", l)
+	}
+	d, err := DesignDrop(SI(), DropInput{Q: 10, CrestWidth: 3, Height: 1.2, Downstream: si1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := (7.4882 - 3) / (2 * math.Tan(12.5*math.Pi/180))
+	if math.Abs(d.TransitionLength-want) > 1e-3 {
+		t.Errorf("outlet transition %.4f m, want %.4f", d.TransitionLength, want)
+	}
+	if math.Abs(d.WallHeight-(d.TailwaterDepth+0.85*d.CriticalDepth)) > 1e-12 {
+		t.Errorf("wall height %.4f m", d.WallHeight)
+	}
+}
