@@ -75,10 +75,7 @@ func RenderAlternativesChart(w io.Writer, format string, c AlternativesChart) er
 		split = split && a.EarthworkCost+a.DropCost > 0 &&
 			math.Abs(a.EarthworkCost+a.DropCost-a.TotalCost) <= 1e-6*math.Max(1, a.TotalCost)
 	}
-	volUnit := "m³"
-	if u == US {
-		volUnit = "ft³"
-	}
+	volUnit := u.VolumeUnit()
 	currency := c.Currency
 	if currency == "" {
 		currency = "cost units"

@@ -17,9 +17,6 @@ func (u Units) Velocity(ms float64) float64 { return u.Length(ms) }
 // VelocityUnit is the symbol of the output velocity unit.
 func (u Units) VelocityUnit() string { return u.LengthUnit() + "/s" }
 
-// VolumeUnit is the symbol of the output volume unit.
-func (u Units) VolumeUnit() string { return u.LengthUnit() + "³" }
-
 // StationLabel is the station label of a chainage (m) in u's notation:
 // 1+250.00 (km+m), or 12+50.00 (100-ft stations) in US units.
 func StationLabel(chainageM float64, u Units) string {

@@ -37,10 +37,22 @@ func (u Units) Area(m2 float64) float64 {
 	return m2
 }
 
-// Volume converts a volume in cubic metres to the output unit (ft³ in US units).
+// CubicYardM3 is one cubic yard in cubic metres (exact: 0.9144³).
+const CubicYardM3 = 0.764554857984
+
+// Volume converts a volume in cubic metres to the output unit: cubic yards
+// in US units, the unit US earthwork is measured and priced in.
 func (u Units) Volume(m3 float64) float64 {
 	if u == US {
-		return m3 / (FootM * FootM * FootM)
+		return m3 / CubicYardM3
 	}
 	return m3
+}
+
+// VolumeUnit is the symbol of the output volume unit.
+func (u Units) VolumeUnit() string {
+	if u == US {
+		return "yd³"
+	}
+	return "m³"
 }

@@ -22,9 +22,6 @@ import (
 	"canalstep/report"
 )
 
-// CubicYardM3 is one cubic yard in m³ (exact: 0.9144³).
-const CubicYardM3 = 0.764554857984
-
 // planFlags are the design flags shared by plan and compare, in the units of
 // --units (lengths m or ft, discharge m³/s or cfs, velocity m/s or ft/s,
 // prices per m³ or per yd³ and per m or per ft of drop height).
@@ -272,7 +269,7 @@ func (f *planFlags) buildSetup(fs *flag.FlagSet) (planSetup, error) {
 // per cubic yard are the US trade's custom).
 func unitVolume(u report.Units) float64 {
 	if u == report.US {
-		return CubicYardM3
+		return report.CubicYardM3
 	}
 	return 1
 }

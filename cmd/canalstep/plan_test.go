@@ -231,8 +231,8 @@ func TestPlanUSUnits(t *testing.T) {
 		"--max-velocity", ft(0.9), "--min-velocity", ft(0.45), "--alignment-crs", "EPSG:32634",
 		"--spacing", ft(10), "--drop-heights", ft(0.5) + "," + ft(1) + "," + ft(1.5), "--step", ft(0.01),
 		"--max-cut", ft(5), "--max-fill", ft(2), "--min-reach", ft(30), "--bank-top-width", ft(3),
-		"--cost-cut", fmt.Sprintf("%.10g", 4*CubicYardM3), "--cost-fill", fmt.Sprintf("%.10g", 6*CubicYardM3),
-		"--cost-waste", fmt.Sprintf("%.10g", 2*CubicYardM3), "--cost-borrow", fmt.Sprintf("%.10g", 8*CubicYardM3),
+		"--cost-cut", fmt.Sprintf("%.10g", 4*report.CubicYardM3), "--cost-fill", fmt.Sprintf("%.10g", 6*report.CubicYardM3),
+		"--cost-waste", fmt.Sprintf("%.10g", 2*report.CubicYardM3), "--cost-borrow", fmt.Sprintf("%.10g", 8*report.CubicYardM3),
 		"--cost-drop-height", fmt.Sprintf("%.10g", 10000*report.FootM)}
 	for _, args := range [][]string{si, us} {
 		var stdout, stderr bytes.Buffer
