@@ -110,6 +110,8 @@ func TestDropExitCodes(t *testing.T) {
 		{"zero flow fraction", withArgs(t42Args, "--flows", "0,1"), 2, "not a positive fraction"},
 		{"empty flow list", withArgs(t42Args, "--flows", ""), 2, "--flows is empty"},
 		{"negative depression", withArgs(t42Args, "--depression", "-0.5"), 2, "--depression must be zero or positive"},
+		// A supercritical canal below gives no tailwater: infeasible, exit 1.
+		{"steep canal below", withArgs(t42Args, "--slope", "0.02"), 1, "steep"},
 		{"missing canal", []string{"drop", "--flow", "10", "--width", "3", "--height", "1.2"}, 2, "missing --bottom-width"},
 	}
 	for _, tc := range tests {

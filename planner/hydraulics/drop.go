@@ -451,23 +451,31 @@ func CheckOutlet(c Consts, d Drop, in DropInput, q float64) (OutletCheck, error)
 	drowned := orDefault(in.DrownedRatio, DefaultDrownedRatio)
 	const slack = 1e-9 // ratios designed to a bound land on it to solver tolerance
 	switch {
-	case o.TailwaterRatio < 1-slack:
+	case o.TailwaterRatio < 1-slack || critical:
 		o.JumpState = SweptOut
 	case o.TailwaterRatio > drowned:
 		o.JumpState = Drowned
 	default:
 		o.JumpState = InBasin
 	}
-	if o.RequiredDepression, err = requiredDepression(c, in, d.CrestRaise, q, 1); err != nil {
+	if e.steepFroude > 0 {
+		// No tailwater from a supercritical canal: report, do not fail, so
+		// that a list of flows still gets its other checks.
+		o.JumpState = SweptOut
+		o.Warnings = append(o.Warnings, fmt.Sprintf("the downstream canal is steep at this flow (Froude %.2f at normal depth) and gives the basin no tailwater; the jump cannot be held by lowering the floor", e.steepFroude))
+	} else if o.RequiredDepression, err = requiredDepression(c, in, d.CrestRaise, q, 1); err != nil {
 		return OutletCheck{}, err
 	}
 
 	switch o.JumpState {
 	case SweptOut:
+		if e.steepFroude > 0 {
+			break
+		}
 		msg := fmt.Sprintf("jump swept out: the tailwater is only %.2f × the sequent depth the jump needs; lower the basin floor to the required depression, widen the basin, or use an SAF-type basin",
 			o.TailwaterRatio)
 		if critical {
-			msg += " (the downstream canal cannot even hold subcritical flow at the basin end)"
+			msg = "jump swept out: the downstream canal cannot take the basin's flow subcritically, so the basin end chokes at critical depth; lower the basin floor to the required depression or widen the basin"
 		}
 		o.Warnings = append(o.Warnings, msg)
 	case Drowned:
@@ -502,6 +510,8 @@ type basinEnd struct {
 	rhs0 float64 // yn + (1 − Co)·α·V_d²/2g, m
 	beta float64 // m³
 	tm   float64 // depth at which the left side is least, m
+
+	steepFroude float64 // Froude number of the downstream normal flow when it is supercritical, else 0
 }
 
 func newBasinEnd(c Consts, in DropInput, b, q float64) (basinEnd, error) {
@@ -513,7 +523,11 @@ func newBasinEnd(c Consts, in DropInput, b, q float64) (basinEnd, error) {
 	w := (1 - in.TransitionLoss) * c.alpha()
 	vd := Velocity(ch.Section, q, yn)
 	beta := w * q * q / (2 * c.G * b * b)
-	return basinEnd{yn: yn, rhs0: yn + w*vd*vd/(2*c.G), beta: beta, tm: math.Cbrt(2 * beta)}, nil
+	e := basinEnd{yn: yn, rhs0: yn + w*vd*vd/(2*c.G), beta: beta, tm: math.Cbrt(2 * beta)}
+	if f := Froude(c, ch.Section, q, yn); f >= 1 {
+		e.steepFroude = f
+	}
+	return e, nil
 }
 
 // tailwater returns the subcritical depth TW at the basin end with the floor
@@ -550,12 +564,21 @@ func requiredDepression(c Consts, in DropInput, p, q, ratio float64) (float64, e
 	if err != nil {
 		return 0, err
 	}
+	if e.steepFroude > 0 {
+		return 0, fmt.Errorf("%w: the downstream canal is steep at %.4g m³/s (Froude %.2f at normal depth), so it gives the basin no tailwater; a drop needs a mild canal below it", ErrInfeasible, q, e.steepFroude)
+	}
 	var solveErr error
 	gap := func(ds float64) float64 {
-		tw, _, err := e.tailwater(ds)
+		tw, critical, err := e.tailwater(ds)
 		if err != nil {
 			solveErr = err
 			return math.Inf(1)
+		}
+		if critical {
+			// The canal cannot take the basin's flow subcritically: the
+			// basin end chokes and holds no jump. Deepening the floor
+			// adds the energy that lifts the flow out subcritically.
+			return math.Inf(-1)
 		}
 		return tw - ratio*randSequent(c, q/b, in.Height+p+ds)
 	}

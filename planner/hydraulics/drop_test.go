@@ -454,3 +454,57 @@ func TestTransitionLengthAndWalls(t *testing.T) {
 		t.Errorf("wall height %.4f m", d.WallHeight)
 	}
 }
+
+// TestChokedBasin: a basin far too narrow for its flow (5000 m³/s through
+// 3 m into the SI-1 canal) chokes at its end; that is never a held jump, and
+// the designed floor is deep enough to lift the flow out subcritically at
+// every checked flow.
+func TestChokedBasin(t *testing.T) {
+	in := DropInput{Q: 5000, CrestWidth: 3, Height: 1.2, Downstream: si1, HoldFlows: []float64{1250, 2500}}
+	zero := 0.0
+	fixed := in
+	fixed.Depression = &zero
+	d, err := DesignDrop(SI(), fixed)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if d.JumpState != SweptOut || !strings.Contains(strings.Join(d.Outlet.Warnings, " "), "chokes") {
+		t.Errorf("choked basin: %s, %q", d.JumpState, d.Outlet.Warnings)
+	}
+	if d.Outlet.RequiredDepression <= 0 {
+		t.Errorf("required depression %g for a choked basin", d.Outlet.RequiredDepression)
+	}
+	d, err = DesignDrop(SI(), in)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, q := range []float64{1250, 2500, 5000} {
+		o, err := CheckOutlet(SI(), d, in, q)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if o.JumpState == SweptOut {
+			t.Errorf("Q %g: swept out after designing the floor for it: %q", q, o.Warnings)
+		}
+	}
+}
+
+// TestSteepDownstream: a supercritical canal below the drop gives no
+// tailwater. Designing the floor is infeasible; checking a fixed floor
+// reports the jump swept out with the reason.
+func TestSteepDownstream(t *testing.T) {
+	steep := Channel{si1.Section, 0.015, 0.02} // Froude 2.5 at normal depth
+	in := DropInput{Q: 10, CrestWidth: 3, Height: 1.2, Downstream: steep}
+	if _, err := DesignDrop(SI(), in); !errors.Is(err, ErrInfeasible) {
+		t.Errorf("design over a steep canal: err = %v, want ErrInfeasible", err)
+	}
+	zero := 0.0
+	in.Depression = &zero
+	d, err := DesignDrop(SI(), in)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if d.JumpState != SweptOut || !strings.Contains(strings.Join(d.Outlet.Warnings, " "), "steep") {
+		t.Errorf("fixed floor over a steep canal: %s, %q", d.JumpState, d.Outlet.Warnings)
+	}
+}
