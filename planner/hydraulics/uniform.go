@@ -34,13 +34,14 @@ func NormalDepth(c Consts, s Section, q, n, slope float64) (float64, error) {
 	k0 := n * q / (c.K * math.Sqrt(slope)) // A·R^(2/3) at normal depth, m^(8/3)
 	b, z := s.BottomWidth, s.SideSlope
 	dp := 2 * math.Sqrt(1+z*z) // dP/dy
-	// Starting guess: the smaller of the wide-rectangle and the triangle
-	// depths for the same conveyance.
+	// Starting guess: the wide-rectangle depth for the same conveyance,
+	// or, when the side slopes dominate the section there, the smaller of
+	// it and the triangle depth.
 	y0 := math.Inf(1)
 	if b > 0 {
 		y0 = math.Pow(k0/b, 0.6)
 	}
-	if z > 0 {
+	if z > 0 && z*y0 > b {
 		// A = z·y², P = dp·y: A^5/P^2 = z^5·y^8/dp² = k0³.
 		y0 = math.Min(y0, math.Pow(k0*k0*k0*dp*dp/(z*z*z*z*z), 0.125))
 	}
@@ -160,11 +161,13 @@ func solveLog(y0 float64, f func(y float64) (g, dg float64)) (float64, error) {
 	return 0, fmt.Errorf("%w: 200 iterations", ErrNoConvergence)
 }
 
-// expStep returns exp(u), by a [2/2] Padé approximant for the small steps
-// near convergence (relative error below 2e-11 for |u| < 0.05; the solver
-// checks its residual, not the step, so this only affects speed).
+// expStep returns exp(u) for a Newton step in ln y: by a [2/2] Padé
+// approximant when |u| < 1 (relative error below 2e-3, and below 2e-11 for
+// |u| < 0.05, where the last steps fall), by math.Exp otherwise. The solver
+// checks its residual, not the step, so the approximation only affects how
+// many steps it takes, and it saves most calls to math.Exp.
 func expStep(u float64) float64 {
-	if math.Abs(u) < 0.05 {
+	if math.Abs(u) < 1 {
 		u2 := u * u / 12
 		return (1 + u/2 + u2) / (1 - u/2 + u2)
 	}
