@@ -90,14 +90,17 @@ res = {r["command"]: r for r in json.load(open(sys.argv[1]))["results"]}
 g, p = res["gdallocinfo"]["mean"], res["python"]["mean"]
 cpu = lambda r: r["user"] + r["system"]
 gc, pc = cpu(res["gdallocinfo"]), cpu(res["python"])
-print("  %-12s %18s %9s %8s   %7s %9s %8s" % ("", "wall ms ± sd", "×gdalloc", "×python", "CPU ms", "×gdalloc", "×python"))
+gm, pm = res["gdallocinfo"]["min"], res["python"]["min"]
+print("  %-12s %18s %9s %8s   %7s %9s %8s   %7s %9s %8s" % ("", "wall ms ± sd", "×gdalloc", "×python",
+      "min ms", "×gdalloc", "×python", "CPU ms", "×gdalloc", "×python"))
 for name in ("canalstep", "terrain", "gdallocinfo", "python"):
     if name in res:
         r = res[name]
-        print("  %-12s %10.1f ± %5.1f %9.2f %8.3f   %7.0f %9.2f %8.3f"
+        print("  %-12s %10.1f ± %5.1f %9.2f %8.3f   %7.1f %9.2f %8.3f   %7.0f %9.2f %8.3f"
               % (name, r["mean"] * 1e3, r["stddev"] * 1e3, r["mean"] / g, r["mean"] / p,
+                 r["min"] * 1e3, r["min"] / gm, r["min"] / pm,
                  cpu(r) * 1e3, cpu(r) / gc, cpu(r) / pc))
-print("  CPU = user + system time. goals: canalstep wall ≤ 0.5× gdallocationinfo (while bilinear), ≤ 0.2× python")
+print("  min = fastest run (least disturbed by other load); CPU = mean user + system time. goals: canalstep wall ≤ 0.5× gdallocationinfo (while bilinear), ≤ 0.2× python")
 PYEOF
 
 	echo "== profile: peak RSS (/usr/bin/time -v; goal < 100 MB)"

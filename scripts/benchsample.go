@@ -90,15 +90,19 @@ func ms(d time.Duration) float64 { return float64(d.Microseconds()) / 1000 }
 
 func ceilDiv(a, b int) int { return (a + b - 1) / b }
 
+// readPoints reads "x y" lines; other columns are ignored.
 func readPoints(r io.Reader) (xs, ys []float64, err error) {
 	sc := bufio.NewScanner(r)
+	xs, ys = make([]float64, 0, 1<<16), make([]float64, 0, 1<<16)
 	for sc.Scan() {
-		f := strings.Fields(sc.Text())
-		if len(f) < 2 {
+		line := strings.TrimSpace(sc.Text())
+		if line == "" {
 			continue
 		}
-		x, err1 := strconv.ParseFloat(f[0], 64)
-		y, err2 := strconv.ParseFloat(f[1], 64)
+		a, b, _ := strings.Cut(line, " ")
+		b, _, _ = strings.Cut(strings.TrimLeft(b, " "), " ")
+		x, err1 := strconv.ParseFloat(a, 64)
+		y, err2 := strconv.ParseFloat(b, 64)
 		if err1 != nil || err2 != nil {
 			return nil, nil, fmt.Errorf("bad point line %q", sc.Text())
 		}
