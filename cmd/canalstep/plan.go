@@ -157,6 +157,21 @@ func parseControls(name string, items []string, lengthM float64) ([]planner.Cont
 	return out, nil
 }
 
+// parse reads the command line and the --design file into a setup. It
+// reports whether the command should go on (not after --help or an error).
+func (f *planFlags) parse(fs *flag.FlagSet, args []string) (planSetup, bool, error) {
+	if ok, err := parseFlags(fs, args); !ok {
+		return planSetup{}, false, err
+	}
+	if f.design != "" {
+		if err := applyDesignFile(fs, f.design); err != nil {
+			return planSetup{}, false, err
+		}
+	}
+	setup, err := f.buildSetup(fs)
+	return setup, err == nil, err
+}
+
 // planSetup is everything one alignment's plan needs besides its ground and
 // its drop heights: the problem's design part, the settings, the units.
 type planSetup struct {
@@ -344,16 +359,8 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		fmt.Fprintln(stdout, "DIR/<name>/stations.csv, drops.csv, summary.json, profile.png and profile.svg.\n\nFlags:")
 		fs.PrintDefaults()
 	}
-	if ok, err := parseFlags(fs, args); !ok {
-		return err
-	}
-	if f.design != "" {
-		if err := applyDesignFile(fs, f.design); err != nil {
-			return err
-		}
-	}
-	setup, err := f.buildSetup(fs)
-	if err != nil {
+	setup, ok, err := f.parse(fs, args)
+	if !ok {
 		return err
 	}
 	heights, err := parseNumberList("drop-heights", f.dropHeights, "0.5,1.0,1.5")
@@ -487,16 +494,8 @@ func runCompare(ctx context.Context, args []string, stdout, stderr io.Writer) er
 		fmt.Fprintln(stdout, "Takes the flags of 'canalstep plan' (--drop-heights is replaced by --alternatives).\n\nFlags:")
 		fs.PrintDefaults()
 	}
-	if ok, err := parseFlags(fs, args); !ok {
-		return err
-	}
-	if f.design != "" {
-		if err := applyDesignFile(fs, f.design); err != nil {
-			return err
-		}
-	}
-	setup, err := f.buildSetup(fs)
-	if err != nil {
+	setup, ok, err := f.parse(fs, args)
+	if !ok {
 		return err
 	}
 	u := setup.units
