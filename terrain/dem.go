@@ -127,6 +127,7 @@ type DEM struct {
 	readers    int      // parallel decoders wanted (Options.Readers)
 	pool       []reader // open decoders; pool[0] is ds itself
 	missing    []int    // scratch for prefetch
+	ahead      lookahead
 }
 
 // Open opens the raster at path (anything GDAL opens, including /vsi… paths)

@@ -3,15 +3,23 @@ package terrain
 import (
 	"errors"
 	"fmt"
-	"math"
 	"sync"
 
 	"github.com/airbusgeo/godal"
 )
 
-// prefetchChunk is how many points [DEM.Sample] looks ahead to find the
-// blocks it will need, so that several can be decoded at once.
+// prefetchChunk is how many points [DEM.Sample] looks ahead, on a cache
+// miss, to find the blocks it will need, so that several can be decoded at
+// once.
 const prefetchChunk = 8192
+
+// lookahead is the batch of points [DEM.Sample] is working through, so that
+// a cache miss can look at the points that follow.
+type lookahead struct {
+	xs, ys []float64
+	pos    int // index of the point being sampled
+	done   int // points before this index have been prefetched
+}
 
 // reader is a GDAL handle used to decode blocks in parallel with the
 // others; a GDAL dataset must not be used by two threads at once, so each
@@ -51,23 +59,14 @@ func (d *DEM) prefetch(xs, ys []float64) error {
 		missing = append(missing, key)
 		return len(missing) <= d.cache.cap/2
 	}
-	x0, dx, y0, dy := d.gt[0], d.gt[1], d.gt[3], d.gt[5]
-	hiC, hiR := d.fw-0.5, d.fh-0.5
+	span := d.span()
 	for i, x := range xs {
-		fc := (x-x0)/dx - 0.5
-		fr := (ys[i]-y0)/dy - 0.5
-		if !(fc >= -0.5 && fc <= hiC && fr >= -0.5 && fr <= hiR) {
+		fc, fr, inside := d.locate(x, ys[i])
+		if !inside {
 			continue
 		}
-		var c0, c1, r0, r1 int
-		if d.info.Method == Nearest {
-			c0, r0 = min(int(fc+0.5), d.w-1), min(int(fr+0.5), d.h-1)
-			c1, r1 = c0, r0
-		} else {
-			c0 = min(max(int(math.Floor(fc)), 0), d.w-2)
-			r0 = min(max(int(math.Floor(fr)), 0), d.h-2)
-			c1, r1 = c0+1, r0+1
-		}
+		c0, r0 := d.origin(fc, fr)
+		c1, r1 := c0+span, r0+span
 		bx0, bx1, by0, by1 := c0/d.tw, c1/d.tw, r0/d.th, r1/d.th
 		ok := note(bx0, by0)
 		if bx1 != bx0 {

@@ -43,9 +43,9 @@ var errClosed = errors.New("DEM is closed")
 // that cannot be read) stop sampling.
 //
 // Sample reads only the blocks the points touch, through the block cache;
-// sampling points in route order reuses each block. Looking a few thousand
-// points ahead, it decodes the blocks they need in parallel (see
-// Options.Readers). It panics if the slices differ in length.
+// sampling points in route order reuses each block. On a cache miss it looks
+// a few thousand points ahead and decodes the blocks they need in parallel
+// (see Options.Readers). It panics if the slices differ in length.
 func (d *DEM) Sample(xs, ys, out []float64) error {
 	if len(ys) != len(xs) || len(out) != len(xs) {
 		panic(fmt.Sprintf("terrain: Sample with %d xs, %d ys, %d out", len(xs), len(ys), len(out)))
@@ -55,29 +55,24 @@ func (d *DEM) Sample(xs, ys, out []float64) error {
 	if d.closed {
 		return errClosed
 	}
+	d.ahead = lookahead{xs: xs, ys: ys}
+	defer func() { d.ahead = lookahead{} }()
 	var outside []int
-	x0, dx, y0, dy := d.gt[0], d.gt[1], d.gt[3], d.gt[5]
-	hiC, hiR := d.fw-0.5, d.fh-0.5
 	for i, x := range xs {
-		if i%prefetchChunk == 0 {
-			end := min(i+prefetchChunk, len(xs))
-			if err := d.prefetch(xs[i:end], ys[i:end]); err != nil {
-				return err
-			}
-		}
-		fc := (x-x0)/dx - 0.5 // column of the point, 0 at the first cell centre
-		fr := (ys[i]-y0)/dy - 0.5
-		if !(fc >= -0.5 && fc <= hiC && fr >= -0.5 && fr <= hiR) {
+		d.ahead.pos = i
+		fc, fr, inside := d.locate(x, ys[i])
+		if !inside {
 			out[i] = math.NaN()
 			outside = append(outside, i)
 			continue
 		}
+		c0, r0 := d.origin(fc, fr)
 		var raw float64
 		var err error
 		if d.info.Method == Nearest {
-			raw, err = d.nearest(fc, fr)
+			raw, err = d.nearest(c0, r0)
 		} else {
-			raw, err = d.bilinear(fc, fr)
+			raw, err = d.bilinear(c0, r0, fc, fr)
 		}
 		if err != nil {
 			return err
@@ -90,15 +85,41 @@ func (d *DEM) Sample(xs, ys, out []float64) error {
 	return nil
 }
 
+// locate returns the point's fractional column and row counted from the
+// first cell centre, and whether the point lies on the raster (false for
+// NaN coordinates).
+func (d *DEM) locate(x, y float64) (fc, fr float64, inside bool) {
+	fc = (x-d.gt[0])/d.gt[1] - 0.5
+	fr = (y-d.gt[3])/d.gt[5] - 0.5
+	inside = fc >= -0.5 && fc <= d.fw-0.5 && fr >= -0.5 && fr <= d.fh-0.5
+	return fc, fr, inside
+}
+
+// origin returns the first cell a sample at (fc, fr) reads: the cell
+// containing it for Nearest, the upper-left cell of the 2×2 stencil for
+// Bilinear, clamped so that the stencil stays on the raster.
+func (d *DEM) origin(fc, fr float64) (c0, r0 int) {
+	if d.info.Method == Nearest {
+		return min(int(fc+0.5), d.w-1), min(int(fr+0.5), d.h-1) // fc ≥ -0.5: truncation is floor
+	}
+	return min(max(int(math.Floor(fc)), 0), d.w-2), min(max(int(math.Floor(fr)), 0), d.h-2)
+}
+
+// span is how many cells beyond its origin a sample's stencil reaches.
+func (d *DEM) span() int {
+	if d.info.Method == Nearest {
+		return 0
+	}
+	return 1
+}
+
 // bad reports whether a raw cell value is nodata or NaN.
 func (d *DEM) bad(v float32) bool {
 	return v != v || (d.hasNoData && v == d.noData)
 }
 
-// nearest returns the raw value of the cell containing (fc, fr), or NaN.
-func (d *DEM) nearest(fc, fr float64) (float64, error) {
-	c := min(int(fc+0.5), d.w-1) // fc ≥ -0.5, so truncation is floor
-	r := min(int(fr+0.5), d.h-1)
+// nearest returns the raw value of cell (c, r), or NaN.
+func (d *DEM) nearest(c, r int) (float64, error) {
 	v, err := d.cell(c, r)
 	if err != nil {
 		return 0, err
@@ -109,11 +130,10 @@ func (d *DEM) nearest(fc, fr float64) (float64, error) {
 	return float64(v), nil
 }
 
-// bilinear interpolates raw values at (fc, fr), or returns NaN when a cell
-// with non-zero weight is nodata.
-func (d *DEM) bilinear(fc, fr float64) (float64, error) {
-	c0 := min(max(int(math.Floor(fc)), 0), d.w-2)
-	r0 := min(max(int(math.Floor(fr)), 0), d.h-2)
+// bilinear interpolates raw values at (fc, fr) from the stencil whose
+// upper-left cell is (c0, r0), or returns NaN when a cell with non-zero
+// weight is nodata.
+func (d *DEM) bilinear(c0, r0 int, fc, fr float64) (float64, error) {
 	tx := min(max(fc-float64(c0), 0), 1)
 	ty := min(max(fr-float64(r0), 0), 1)
 
@@ -178,6 +198,17 @@ func (d *DEM) block(bx, by int) (*block, error) {
 	key := by*d.ntx + bx
 	if b := d.cache.get(key); b != nil {
 		return b, nil
+	}
+	// A miss: decode the blocks the next points need together, unless this
+	// stretch of points has been looked at already.
+	if a := &d.ahead; d.readers > 1 && a.pos >= a.done {
+		a.done = min(a.pos+prefetchChunk, len(a.xs))
+		if err := d.prefetch(a.xs[a.pos:a.done], a.ys[a.pos:a.done]); err != nil {
+			return nil, err
+		}
+		if b := d.cache.get(key); b != nil {
+			return b, nil
+		}
 	}
 	x0, y0 := bx*d.tw, by*d.th
 	w, h := min(d.tw, d.w-x0), min(d.th, d.h-y0)
