@@ -284,7 +284,18 @@ func (p *core) solve() (*solution, error) {
 		}
 		pending[i] = nil
 
-		// Liveness.
+		// Liveness. A station where no bed line meets the bounds stops
+		// every path, including drops still in flight.
+		open := false
+		for g := 0; g < G && !open; g++ {
+			open = wlo[g][i] <= whi[g][i]
+		}
+		if !open {
+			for g := 0; g < G; g++ {
+				killMask[i] |= 1<<p.loWhy[g][i] | 1<<p.hiWhy[g][i]
+			}
+			return nil, p.infeasible(i, i, killMask)
+		}
 		any := false
 		for g := 0; g < G && !any; g++ {
 			f := ft[g]
@@ -529,6 +540,10 @@ func (p *core) infeasible(lastLive, i int, killMask []uint8) error {
 	sort.Strings(names)
 	e := &InfeasibleError{Constraints: names, From: p.c[start], To: p.c[i]}
 	switch {
+	case mask&(1<<whyEnd) != 0:
+		e.Hint = "the end invert cannot be reached with the allowed grades and drops; check it or free the end"
+	case mask&(1<<whyFixed) != 0 || mask&(1<<whyMinWater) != 0:
+		e.Hint = "a control conflicts with the cut and fill limits or cannot be reached from upstream"
 	case mask&(1<<whyMaxFill) != 0 && mask&(1<<whyMaxCut) == 0:
 		e.Hint = "the ground falls faster than the steepest grade and the allowed drops at their minimum spacing can follow; allow higher drops, more fill or a shorter minimum reach"
 	case mask&(1<<whyMaxCut) != 0 && mask&(1<<whyMaxFill) == 0:
