@@ -2,6 +2,8 @@ package planner
 
 import (
 	"bytes"
+	"flag"
+	"fmt"
 	"math"
 	"math/rand/v2"
 	"os"
@@ -126,5 +128,42 @@ func TestOptimumMatchesGLPK(t *testing.T) {
 		if len(res.Drops) == 0 {
 			t.Errorf("%d stations: no drops in the optimum; the case proves little", tc.n)
 		}
+	}
+}
+
+var (
+	benchPlanOut  = flag.String("benchplan.out", "", "directory: write the single-grade MIP model (model.lp) and the optimiser's objective and time (dp.txt) for scripts/bench-plan.sh")
+	benchPlanN    = flag.Int("benchplan.n", 400, "stations of the bench-plan model")
+	benchPlanReps = flag.Int("benchplan.reps", 20, "timed optimiser runs for bench-plan (the fastest is reported)")
+)
+
+// TestBenchPlanModel is the Go side of scripts/bench-plan.sh; it runs only
+// with -benchplan.out. It times Optimize (the fastest of -benchplan.reps
+// runs, everything included) and writes the same problem as a MIP for CBC.
+func TestBenchPlanModel(t *testing.T) {
+	if *benchPlanOut == "" {
+		t.Skip("run by scripts/bench-plan.sh with -benchplan.out")
+	}
+	p, s := mipProblem(*benchPlanN, 400)
+	var buf bytes.Buffer
+	if err := WriteLP(&buf, p, s); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(filepath.Join(*benchPlanOut, "model.lp"), buf.Bytes(), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	var res *Result
+	best := time.Duration(math.MaxInt64)
+	for r := 0; r < max(1, *benchPlanReps); r++ {
+		t0 := time.Now()
+		var err error
+		if res, err = Optimize(p, s); err != nil {
+			t.Fatal(err)
+		}
+		best = min(best, time.Since(t0))
+	}
+	out := fmt.Sprintf("stations %d\nobjective %.10f\ndrops %d\nseconds %.9f\n", *benchPlanN, res.Totals.TotalCost, len(res.Drops), best.Seconds())
+	if err := os.WriteFile(filepath.Join(*benchPlanOut, "dp.txt"), []byte(out), 0o644); err != nil {
+		t.Fatal(err)
 	}
 }
