@@ -176,3 +176,29 @@ func TestGeographicDEM(t *testing.T) {
 		t.Errorf("sample at (15.0105°E, 36.0195°N) = %v m, want %v m", out[0], want)
 	}
 }
+
+// TestVSIPath opens a DEM through GDAL's virtual file system (/vsimem/, as
+// /vsicurl/ and /vsis3/ work for remote files), with parallel readers, which
+// open the path again.
+func TestVSIPath(t *testing.T) {
+	const path = "/vsimem/terrain-test/plane.tif"
+	if err := terrain.WriteGeoTIFF(path, planar(600, 300, 20, 0.5, 0.25)); err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() { godal.VSIUnlink(path) })
+	d := mustOpen(t, path, terrain.Options{Readers: 2})
+	// Two points in different 256-cell blocks: cells (10, 10) and (500, 200).
+	x0, y0 := cellCentre(10, 10)
+	x1, y1 := cellCentre(500, 200)
+	out := make([]float64, 2)
+	if err := d.Sample([]float64{x0, x1}, []float64{y0, y1}, out); err != nil {
+		t.Fatal(err)
+	}
+	want := []float64{20 + 5 + 2.5, 20 + 250 + 50} // plane at the centres, exact in float32
+	if out[0] != want[0] || out[1] != want[1] {
+		t.Errorf("got %v, want %v", out, want)
+	}
+	if d.BlocksRead() != 2 {
+		t.Errorf("%d blocks read, want 2", d.BlocksRead())
+	}
+}

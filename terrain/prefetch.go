@@ -119,6 +119,9 @@ func (d *DEM) prefetch(xs, ys []float64) error {
 	}
 	wg.Wait()
 	if err := errors.Join(errs...); err != nil {
+		for range blocks {
+			d.cache.release()
+		}
 		return err
 	}
 	for _, b := range blocks {
