@@ -92,3 +92,24 @@ func TestWriteGeoTIFFAtomic(t *testing.T) {
 		t.Error("grid with 3 values for 2×2 cells was written")
 	}
 }
+
+// TestWriteGeoTIFFOptions checks the CRS and compression options: a grid in
+// California zone 3 (US survey feet), uncompressed.
+func TestWriteGeoTIFFOptions(t *testing.T) {
+	g := planar(8, 8, 1, 0, 0)
+	g.EPSG = 0
+	path := mustWriteDEM(t, t.TempDir(), "ca.tif", g, terrain.WithCRS("EPSG:2227"), terrain.WithCompression("NONE"))
+	in := mustOpen(t, path, terrain.Options{}).Info()
+	// 0.304800609601219 m per US survey foot, from the EPSG dataset (unit 9003).
+	if in.EPSG != 2227 || in.LinearUnitToMetre != 0.304800609601219 {
+		t.Errorf("EPSG %d, unit %v m; want 2227, 0.304800609601219 m", in.EPSG, in.LinearUnitToMetre)
+	}
+	ds, err := godal.Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer ds.Close()
+	if c := ds.Metadata("COMPRESSION", godal.Domain("IMAGE_STRUCTURE")); c != "" {
+		t.Errorf("compression %q, want none", c)
+	}
+}
