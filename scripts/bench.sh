@@ -25,6 +25,9 @@ bench_build() {
 	mkdir -p bin
 	go build -o bin/canalstep ./cmd/canalstep
 	go build -o bin/benchsample scripts/benchsample.go
+	# The floor for any program linked with GDAL: loading libgdal and its
+	# hundred-odd shared libraries, doing nothing else.
+	printf 'int main(void) { return 0; }\n' | gcc -x c - -o bin/gdal-load-only -Wl,--no-as-needed -lgdal
 }
 
 bench_data() {
@@ -42,6 +45,7 @@ peak_rss_mb() {
 #   terrain      package terrain alone: read points, Open, Sample (bilinear)
 #   gdallocinfo  gdallocationinfo -valonly -geoloc, points on stdin (nearest)
 #   python       rasterio + numpy, touched blocks only, bilinear
+#   gdal-load-only  an empty C program linked with libgdal (the floor)
 bench_profile() {
 	local dem="$BENCH_OUT/dem.tif" route="$BENCH_OUT/route.geojson" pts="$BENCH_OUT/points.txt"
 	local prof_out="$BENCH_OUT/profile-out"
@@ -74,6 +78,7 @@ else:
 		-n terrain "bin/benchsample $dem $pts"
 		-n gdallocinfo "gdallocationinfo -valonly -geoloc $dem < $pts > /dev/null"
 		-n python "$PY scripts/bench_rasterio.py $dem $pts"
+		-n gdal-load-only "bin/gdal-load-only"
 	)
 	if [ "$have_profile" = 1 ]; then
 		cmds=(-n canalstep "bin/canalstep profile --dem $dem --alignment $route --spacing 1 --out $prof_out" "${cmds[@]}")
@@ -93,7 +98,7 @@ gc, pc = cpu(res["gdallocinfo"]), cpu(res["python"])
 gm, pm = res["gdallocinfo"]["min"], res["python"]["min"]
 print("  %-12s %18s %9s %8s   %7s %9s %8s   %7s %9s %8s" % ("", "wall ms ± sd", "×gdalloc", "×python",
       "min ms", "×gdalloc", "×python", "CPU ms", "×gdalloc", "×python"))
-for name in ("canalstep", "terrain", "gdallocinfo", "python"):
+for name in ("canalstep", "terrain", "gdallocinfo", "python", "gdal-load-only"):
     if name in res:
         r = res[name]
         print("  %-12s %10.1f ± %5.1f %9.2f %8.3f   %7.1f %9.2f %8.3f   %7.0f %9.2f %8.3f"
@@ -110,6 +115,13 @@ PYEOF
 	fi
 	printf '  %-12s %6s MB\n' gdallocinfo "$(peak_rss_mb sh -c "gdallocationinfo -valonly -geoloc $dem < $pts")"
 	printf '  %-12s %6s MB\n' python "$(peak_rss_mb "$PY" scripts/bench_rasterio.py "$dem" "$pts")"
+
+	echo
+	echo "== profile: Go benchmarks of package terrain"
+	echo "  BenchRoute: this DEM and these points, Open+Sample+Close per op (blocks decoded each time);"
+	echo "  SampleLine/SampleRandom: a 2048² test DEM, blocks already cached"
+	CANALSTEP_BENCH_DIR="$PWD/$BENCH_OUT" go test -run '^$' -bench 'BenchRoute|SampleLine|SampleRandom' -benchtime 20x ./terrain |
+		grep -E '^Benchmark' | sed 's/^/  /'
 
 	echo
 	echo "== profile: blocks decoded"
