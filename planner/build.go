@@ -294,7 +294,8 @@ func typicalSpacing(c []float64) float64 {
 func (q *prepared) core() *core {
 	n, G := len(q.p.Chainage), len(q.grades)
 	k := &core{c: q.p.Chainage, g: q.p.Ground, z0: q.z0, step: q.s.Step, grades: q.grades, tpl: q.tpl,
-		heights: q.heights, costs: q.costs, volume: q.s.Volume}
+		heights: q.heights, costs: q.costs, volume: q.s.Volume,
+		keep: 1 - q.costs.Shrinkage, invKeep: 1 / (1 - q.costs.Shrinkage)}
 	for _, h := range q.heights {
 		k.hSteps = append(k.hSteps, int(math.Round(h/q.s.Step)))
 		k.dropCost = append(k.dropCost, q.costs.Drop(h))

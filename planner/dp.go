@@ -36,6 +36,8 @@ type core struct {
 	arrive   [][]int // [h][j]: first station a drop of height h at j lets the next drop sit at, -1: no drop there
 	costs    Costs
 	volume   VolumeMethod
+	keep     float64 // 1 − shrinkage
+	invKeep  float64 // 1/(1 − shrinkage)
 
 	zlo, zhi     [][]float64 // [g][i] bed elevation bounds (m)
 	loWhy, hiWhy [][]uint8   // [g][i] reason of each bound
@@ -54,20 +56,15 @@ type dropPick struct {
 	station, height int
 }
 
-// slot holds drop candidates made at station j for one height: for each
-// target grade and bed-line index, the best cost so far minus the target's
-// running earthwork at j. They merge into the free states at the arrival
-// station, where the next drop may sit.
+// slot holds drop candidates made at station j for the heights whose
+// spacing frees the next drop at station a: for each target grade and
+// bed-line index, the best cost so far minus the target's running earthwork
+// at j. They merge into the free states at a, where the next drop may sit.
 type slot struct {
-	j, h  int
-	lo    []int       // per grade: first bed-line index held
-	vals  [][]float64 // per grade
-	gprev [][]uint8   // per grade: grade of the reach upstream of the drop
-}
-
-type arrivalRec struct {
-	j int32
-	h uint8
+	j, a int
+	lo   []int       // per grade: first bed-line index held
+	vals [][]float64 // per grade
+	hg   [][]uint8   // per grade: height index × grades + grade of the reach upstream of the drop
 }
 
 func ceilIdx(x float64) int  { return int(math.Ceil(x - 1e-7)) }
@@ -87,14 +84,25 @@ func (p *core) bed(g, i, k int) float64 {
 	return p.z0 + float64(k)*p.step - p.grades[g]*(p.c[i]-p.c[0])
 }
 
+// earthwork is Costs.Earthwork with the shrinkage factors precomputed.
+func (p *core) earthwork(cut, fill float64) float64 {
+	c := &p.costs
+	v := c.Cut*cut + c.Fill*fill
+	if usable := cut * p.keep; usable > fill {
+		return v + c.Waste*(cut-fill*p.invKeep)
+	} else {
+		return v + c.Borrow*(fill-usable)
+	}
+}
+
 // segmentCost is the earthwork cost between stations i−1 and i of a bed line
 // with ends at depths d1, d2 below ground, areas (c1, f1) and (c2, f2).
 func (p *core) segmentCost(t *Template, l, d1, d2, c1, f1, c2, f2 float64) float64 {
 	if p.volume == Prismoidal {
 		cm, fm := t.Areas((d1 + d2) / 2)
-		return p.costs.Earthwork(PrismoidalVolume(l, c1, cm, c2), PrismoidalVolume(l, f1, fm, f2))
+		return p.earthwork(PrismoidalVolume(l, c1, cm, c2), PrismoidalVolume(l, f1, fm, f2))
 	}
-	return p.costs.Earthwork(l*(c1+c2)/2, l*(f1+f2)/2)
+	return p.earthwork(l*(c1+c2)/2, l*(f1+f2)/2)
 }
 
 // phaseOffsets groups grades whose bed lines are in step at station i: for
@@ -175,17 +183,24 @@ func (p *core) solve() (*solution, error) {
 		}
 	}
 	dec := make([]uint8, decOff[n*G])
-	arrivals := make([][]arrivalRec, n)
+	arrivals := make([][]int32, n) // drop station of each slot merged at a station
+	HG := H * G
+	if HG > 255 {
+		return nil, fmt.Errorf("%w: %d drop heights × %d grades is too many; use at most 255 combinations", ErrInput, H, G)
+	}
 	pending := make([][]*slot, n)
 	var free []*slot
-	newSlot := func(j, h int) *slot {
+	newSlot := func(j, a int) *slot {
 		var s *slot
 		if k := len(free); k > 0 {
 			s, free = free[k-1], free[:k-1]
 		} else {
-			s = &slot{lo: make([]int, G), vals: make([][]float64, G), gprev: make([][]uint8, G)}
+			s = &slot{lo: make([]int, G), vals: make([][]float64, G), hg: make([][]uint8, G)}
 		}
-		s.j, s.h = j, h
+		s.j, s.a = j, a
+		for g := 0; g < G; g++ {
+			s.vals[g], s.hg[g] = s.vals[g][:0], s.hg[g][:0]
+		}
 		return s
 	}
 	killMask := make([]uint8, n)
@@ -239,27 +254,52 @@ func (p *core) solve() (*solution, error) {
 			}
 			t := &p.tpl[g]
 			s := p.grades[g]
+			// Bed lines entering the window start a new feasible run.
 			for k := nlo; k <= nhi; k++ {
-				x := k - km
-				z := p.z0 + float64(k)*p.step - s*di
-				d := gi - z
-				ac, af := t.Areas(d)
 				if k >= olo && k <= ohi {
-					dprev := gprevStation - (z + s*l)
-					pp[x] += p.segmentCost(t, l, dprev, d, cc[x], ff[x], ac, af)
-				} else {
-					sn[x], pp[x], f[x] = int32(i), 0, inf
+					continue
 				}
-				cc[x], ff[x] = ac, af
+				x := k - km
+				sn[x], pp[x], f[x] = int32(i), 0, inf
+			}
+			// Bed lines in the window at both stations add the segment's
+			// earthwork; every line in the window records its end areas.
+			a, bnd := max(nlo, olo), min(nhi, ohi)
+			zb := p.z0 - s*di
+			if p.volume == AverageEndArea && a <= bnd {
+				hl := l / 2
+				for k := a; k <= bnd; k++ {
+					x := k - km
+					ac, af := t.Areas(gi - (zb + float64(k)*p.step))
+					pp[x] += p.earthwork(hl*(cc[x]+ac), hl*(ff[x]+af))
+					cc[x], ff[x] = ac, af
+				}
+			} else if a <= bnd {
+				for k := a; k <= bnd; k++ {
+					x := k - km
+					z := zb + float64(k)*p.step
+					d := gi - z
+					ac, af := t.Areas(d)
+					pp[x] += p.segmentCost(t, l, gprevStation-(z+s*l), d, cc[x], ff[x], ac, af)
+					cc[x], ff[x] = ac, af
+				}
+			}
+			for k := nlo; k <= nhi; k++ {
+				if k >= a && k <= bnd {
+					k = bnd
+					continue
+				}
+				x := k - km
+				cc[x], ff[x] = t.Areas(gi - (zb + float64(k)*p.step))
 			}
 			states += int64(max(0, nhi-nlo+1))
 		}
 		// Drop arrivals: the next drop may sit here.
 		for si, sl := range pending[i] {
-			if (si+1)*G > 255 {
-				return nil, fmt.Errorf("%w: too many drop heights × grades arriving at one station (%d × %d); use fewer", ErrInput, len(pending[i]), G)
+			if (si+1)*HG > 255 {
+				return nil, fmt.Errorf("%w: drops from %d stations with %d heights × %d grades free the next drop at chainage %.2f m; use fewer heights or grades", ErrInput, len(pending[i]), H, G, p.c[i])
 			}
-			arrivals[i] = append(arrivals[i], arrivalRec{j: int32(sl.j), h: uint8(sl.h)})
+			arrivals[i] = append(arrivals[i], int32(sl.j))
 			for g := 0; g < G; g++ {
 				vals := sl.vals[g]
 				if len(vals) == 0 {
@@ -275,7 +315,7 @@ func (p *core) solve() (*solution, error) {
 					x := k - km
 					if v < f[x] && int(sn[x]) <= sl.j {
 						f[x] = v
-						dec[dbase+k] = uint8(1 + si*G + int(sl.gprev[g][k-sl.lo[g]]))
+						dec[dbase+k] = uint8(1 + si*HG + int(sl.hg[g][k-sl.lo[g]]))
 					}
 				}
 			}
@@ -361,28 +401,30 @@ func (p *core) solve() (*solution, error) {
 					}
 				}
 			}
-			for h := 0; h < H; h++ {
-				a := p.arrive[h][i]
+			for h0 := 0; h0 < H; h0++ {
+				a := p.arrive[h0][i]
 				if a < 0 {
 					continue
 				}
-				// One slot per (station, height) holds every target grade;
-				// find or make it.
+				seen := false
+				for h := 0; h < h0; h++ {
+					seen = seen || p.arrive[h][i] == a
+				}
+				if seen {
+					continue // handled with the first height arriving at a
+				}
+				// One slot per (drop station, arrival) holds every target
+				// grade and every height arriving there; find or make it.
 				var sl *slot
 				for _, q := range pending[a] {
-					if q.j == i && q.h == h {
+					if q.j == i {
 						sl = q
 					}
 				}
 				fresh := sl == nil
 				if fresh {
-					sl = newSlot(i, h)
-					for g := 0; g < G; g++ {
-						sl.vals[g] = sl.vals[g][:0]
-						sl.gprev[g] = sl.gprev[g][:0]
-					}
+					sl = newSlot(i, a)
 				}
-				dc := p.dropCost[h]
 				anyV := false
 				for g := 0; g < G; g++ {
 					if rep[g] != r || wlo[g][i] > whi[g][i] {
@@ -391,18 +433,33 @@ func (p *core) solve() (*solution, error) {
 					lo, hi := wlo[g][i], whi[g][i]
 					sl.lo[g] = lo
 					vals := grow(sl.vals[g], hi-lo+1)
-					gp := growU8(sl.gprev[g], hi-lo+1)
-					pp := pr[g]
-					for k := lo; k <= hi; k++ {
-						v := inf
-						if y := k - off[g] + p.hSteps[h] - blo; y >= 0 && y < m && b[y] < inf {
-							v = b[y] + dc - pp[k-kmin[g]]
-							gp[k-lo] = barg[y]
+					hg := growU8(sl.hg[g], hi-lo+1)
+					for x := range vals {
+						vals[x] = inf
+					}
+					for h := h0; h < H; h++ {
+						if p.arrive[h][i] != a {
+							continue
+						}
+						dc := p.dropCost[h]
+						sh := p.hSteps[h] - off[g] - blo // y = k + sh indexes b
+						k0, k1 := max(lo, -sh), min(hi, m-1-sh)
+						code := uint8(h * G)
+						for k := k0; k <= k1; k++ {
+							y := k + sh
+							if v := b[y] + dc; v < vals[k-lo] {
+								vals[k-lo], hg[k-lo] = v, code+barg[y]
+							}
+						}
+					}
+					pp := pr[g][lo-kmin[g]:]
+					for x, v := range vals {
+						if v < inf {
+							vals[x] = v - pp[x]
 							anyV = true
 						}
-						vals[k-lo] = v
 					}
-					sl.vals[g], sl.gprev[g] = vals, gp
+					sl.vals[g], sl.hg[g] = vals, hg
 				}
 				if fresh {
 					if anyV {
@@ -442,9 +499,8 @@ func (p *core) solve() (*solution, error) {
 			continue
 		}
 		c := int(code) - 1
-		ar := arrivals[t][c/G]
-		gp := c % G
-		j, h := int(ar.j), int(ar.h)
+		j := int(arrivals[t][c/HG])
+		h, gp := (c%HG)/G, c%G
 		m := (p.grades[gp] - p.grades[g]) * (p.c[j] - p.c[0]) / p.step
 		kp := k + p.hSteps[h] + int(math.Round(m))
 		revDrops = append(revDrops, dropPick{station: j, height: h})

@@ -67,7 +67,7 @@ func checkPlan(t *testing.T, p Problem, res *Result) {
 func TestOptimumNeverCostsMoreThanBaseline(t *testing.T) {
 	feasibleBaselines := 0
 	for seed := uint64(1); seed <= 8; seed++ {
-		p := testProblem(400, seed)
+		p := testProblem(250, seed)
 		if seed%2 == 0 {
 			// Wide limits so that the even-spacing profile is feasible too.
 			p.MaxCutDepth, p.MaxFillHeight = 12, 6
