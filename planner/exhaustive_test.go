@@ -113,6 +113,11 @@ func TestOptimumMatchesExhaustiveSearch(t *testing.T) {
 				p.EndInvert = &end
 				p.FixedInverts = []Control{{Chainage: 30, Level: z0 - 0.008*30}}
 			}},
+		// Irregular stations (alignment vertices): grades 0.003 apart are in
+		// step only at chainages that are multiples of 10/3 m, and several
+		// drop stations free the next drop at the same station.
+		{name: "irregular stations", n: 9, seed: 9, grades: []float64{0.008, 0.005}, heights: []float64{0.3, 0.6}, basin: 5, minReach: 4,
+			mod: func(p *Problem) { copy(p.Chainage, []float64{0, 10, 17, 30, 36.5, 40, 52, 60, 70}) }},
 		{name: "minimum water level", n: 8, seed: 7, grades: []float64{0.008, 0.004}, heights: []float64{0.3, 0.6}, basin: 6, minReach: 5,
 			mod: func(p *Problem) { p.MinWaterLevels = []Control{{Chainage: 40, Level: p.Ground[4] + 0.2}} }},
 	}

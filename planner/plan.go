@@ -357,10 +357,11 @@ func (q *prepared) hydraulics(pl *Plan, drops []dropSpec, grades []int) {
 		for _, w := range dr.Warnings {
 			pl.Warnings = append(pl.Warnings, fmt.Sprintf("drop at chainage %.2f m: %s", st.Chainage, w))
 		}
-		// Upstream control: the crest holds normal depth when it can be
-		// raised; a crest left at bed level draws the water down to the
-		// depth whose specific energy is 1.5·yc on the crest.
-		if dd.CrestRaise <= 0 && dd.ControlWidth < q.crest {
+		// Upstream control: a crest raised by p > 0 holds normal depth. A
+		// crest narrower than the control width stays at bed level and
+		// backs the water up (M1) to the depth whose specific energy is
+		// 1.5·yc on the crest (reference sheet §4.5).
+		if dd.CrestRaise <= 0 && dd.ControlWidth > q.crest {
 			yc := math.Cbrt(math.Pow(q.p.Flow/q.crest, 2) / c.G)
 			if y, ok := q.depthForEnergy(1.5*yc, gu); ok {
 				control[x] = y
@@ -414,30 +415,29 @@ func (q *prepared) hydraulics(pl *Plan, drops []dropSpec, grades []int) {
 		}
 	}
 	if t.MaxVelocity > q.p.MaxVelocity*(1+1e-9) {
-		pl.Warnings = append(pl.Warnings, fmt.Sprintf("velocity reaches %.3f m/s, above the permissible %.3f m/s, in the drawdown above a drop", t.MaxVelocity, q.p.MaxVelocity))
+		pl.Warnings = append(pl.Warnings, fmt.Sprintf("velocity reaches %.3f m/s, above the permissible %.3f m/s, in a drawdown", t.MaxVelocity, q.p.MaxVelocity))
+	}
+	if q.p.MinVelocity > 0 && t.MinVelocity < q.p.MinVelocity*(1-1e-9) {
+		pl.Warnings = append(pl.Warnings, fmt.Sprintf("velocity falls to %.3f m/s, below the non-silting %.3f m/s, in the backwater above a drop", t.MinVelocity, q.p.MinVelocity))
 	}
 	sort.Strings(pl.Warnings)
 }
 
 // depthForEnergy returns the subcritical depth (m) at which the canal at
 // grade g carries the design flow with specific energy e (m), by bisection
-// between critical and normal depth.
+// above critical depth.
 func (q *prepared) depthForEnergy(e, g float64) (float64, bool) {
 	c := q.s.Consts
 	yc, err := hydraulics.CriticalDepth(c, q.p.Section, q.p.Flow)
 	if err != nil {
 		return 0, false
 	}
-	yn, err := hydraulics.NormalDepth(c, q.p.Section, q.p.Flow, q.p.Roughness, g)
-	if err != nil || yn <= yc {
-		return 0, false
-	}
 	f := func(y float64) float64 { return hydraulics.SpecificEnergy(c, q.p.Section, q.p.Flow, y) - e }
-	lo, hi := yc, yn
+	lo, hi := yc, math.Max(2*yc, e)
 	if f(lo) > 0 || f(hi) < 0 {
 		return 0, false
 	}
-	for it := 0; it < 100 && hi-lo > 1e-9; it++ {
+	for it := 0; it < 200 && hi-lo > 1e-10; it++ {
 		m := (lo + hi) / 2
 		if f(m) < 0 {
 			lo = m

@@ -8,6 +8,7 @@ import (
 	"testing"
 
 	"canalstep/alignment"
+	"canalstep/planner/hydraulics"
 )
 
 // checkPlan asserts the invariants every optimised plan must keep.
@@ -117,12 +118,24 @@ func TestPlanHydraulics(t *testing.T) {
 			t.Errorf("chainage %.0f m: water %.3f at or above the top of bank %.3f", st.Chainage, st.WaterSurface, st.TopOfBank)
 		}
 	}
-	// With the crest raised to hold normal depth, the standard step
-	// reproduces normal depth (its own tolerance, 1e-6 m).
+	// The crest of these drops (1 m, the bed width) is narrower than the
+	// control width, so each backs the water up (M1): at the drop the depth
+	// is above normal and its specific energy is 1.5·yc on the crest
+	// (reference sheet §4.5); upstream the profile returns towards normal
+	// depth and never falls below it.
+	c := hydraulics.SI()
+	yc := math.Cbrt(math.Pow(p.Flow/p.Section.BottomWidth, 2) / c.G)
+	for _, d := range res.Drops {
+		st := res.Stations[d.Station]
+		e := hydraulics.SpecificEnergy(c, p.Section, p.Flow, st.Depth)
+		if math.Abs(e-1.5*yc) > 1e-6 {
+			t.Errorf("drop at %.0f m: upstream energy %.6f m, want 1.5·yc = %.6f m", d.Chainage, e, 1.5*yc)
+		}
+	}
 	for _, r := range res.Reaches {
 		for _, st := range res.Stations {
-			if st.Chainage > r.From && st.Chainage < r.To && math.Abs(st.Depth-r.NormalDepth) > 1e-3 {
-				t.Logf("chainage %.0f m: depth %.4f, normal %.4f (drawdown or backwater)", st.Chainage, st.Depth, r.NormalDepth)
+			if st.Chainage > r.From && st.Chainage < r.To && st.Depth < r.NormalDepth-1e-6 {
+				t.Errorf("chainage %.0f m: depth %.4f below normal %.4f in an M1 reach", st.Chainage, st.Depth, r.NormalDepth)
 			}
 		}
 	}
