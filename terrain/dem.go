@@ -152,7 +152,7 @@ func Open(path string, opt Options) (*DEM, error) {
 	if opt.Readers < 0 {
 		return nil, fmt.Errorf("%d parallel readers is negative", opt.Readers)
 	}
-	ds, err := godal.Open(path, godal.RasterOnly())
+	ds, err := openRaster(path)
 	if err != nil {
 		return nil, fmt.Errorf("cannot open DEM %s: %s", path, strings.TrimSpace(err.Error()))
 	}

@@ -202,3 +202,40 @@ func TestVSIPath(t *testing.T) {
 		t.Errorf("%d blocks read, want 2", d.BlocksRead())
 	}
 }
+
+// TestVRT opens a DEM that is not a GeoTIFF (a GDAL VRT over one), which
+// needs drivers beyond GeoTIFF, and checks it samples like its source.
+func TestVRT(t *testing.T) {
+	dir := t.TempDir()
+	tif := mustWriteDEM(t, dir, "plane.tif", planar(8, 8, 40, 1.5, -0.5))
+	vrt := filepath.Join(dir, "plane.vrt")
+	xml := `<VRTDataset rasterXSize="8" rasterYSize="8">
+  <SRS>EPSG:32633</SRS>
+  <GeoTransform>500000, 10, 0, 4000000, 0, -10</GeoTransform>
+  <VRTRasterBand dataType="Float32" band="1">
+    <SimpleSource>
+      <SourceFilename relativeToVRT="1">plane.tif</SourceFilename>
+      <SourceBand>1</SourceBand>
+    </SimpleSource>
+  </VRTRasterBand>
+</VRTDataset>
+`
+	if err := os.WriteFile(vrt, []byte(xml), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	xs, ys := []float64{fxX0 + 12, fxX0 + 47.5}, []float64{fxY0 - 33, fxY0 - 71.25}
+	var got [2][]float64
+	for i, p := range []string{tif, vrt} {
+		d := mustOpen(t, p, terrain.Options{})
+		got[i] = make([]float64, len(xs))
+		if err := d.Sample(xs, ys, got[i]); err != nil {
+			t.Fatalf("%s: %v", p, err)
+		}
+		if d.Info().EPSG != 32633 {
+			t.Errorf("%s: EPSG %d", p, d.Info().EPSG)
+		}
+	}
+	if got[0][0] != got[1][0] || got[0][1] != got[1][1] {
+		t.Errorf("VRT samples %v, GeoTIFF samples %v", got[1], got[0])
+	}
+}

@@ -18,5 +18,8 @@
 //
 // GDAL's own block cache is global to the process. Unless GDAL_CACHEMAX is
 // already set in the environment, the first call into this package sets it
-// to 64 MB so that GDAL's cache, on top of ours, stays small.
+// to 64 MB so that GDAL's cache, on top of ours, stays small. The package
+// registers GDAL's GeoTIFF driver first and all other drivers only when a
+// raster is not a GeoTIFF, which saves start-up time in the common case;
+// code elsewhere that needs other drivers calls godal.RegisterAll itself.
 package terrain

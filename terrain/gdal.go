@@ -35,6 +35,7 @@ import (
 	"os"
 	"runtime"
 	"sync"
+	"sync/atomic"
 	"unsafe"
 
 	"github.com/airbusgeo/godal"
@@ -42,12 +43,16 @@ import (
 
 // gdalCacheMB is the size of GDAL's own block cache that setup asks for when
 // the environment does not set GDAL_CACHEMAX. Our float32 block cache sits
-// in front of it, so GDAL needs only enough to decode one block at a time.
+// in front of it; GDAL needs room for the blocks of one cached window (for
+// strip files, the strips of one 256-row band).
 const gdalCacheMB = "64"
 
-var setupOnce sync.Once
+var (
+	setupOnce, allOnce sync.Once
+	allRegistered      atomic.Bool
+)
 
-// setup registers GDAL's drivers and bounds GDAL's block cache, once per
+// setup bounds GDAL's block cache and registers the GeoTIFF driver, once per
 // process. os.Setenv reaches C's environment in a cgo program, and GDAL reads
 // GDAL_CACHEMAX lazily on first use of its cache.
 func setup() {
@@ -55,8 +60,32 @@ func setup() {
 		if os.Getenv("GDAL_CACHEMAX") == "" {
 			os.Setenv("GDAL_CACHEMAX", gdalCacheMB)
 		}
-		godal.RegisterAll()
+		if err := godal.RegisterRaster(godal.GTiff); err != nil {
+			registerAll()
+		}
 	})
+}
+
+// registerAll registers all of GDAL's drivers, once. Registering the 200-odd
+// drivers takes about 12 ms of start-up on a 2-core machine, so it waits
+// until a raster is not a GeoTIFF.
+func registerAll() {
+	allOnce.Do(func() {
+		godal.RegisterAll()
+		allRegistered.Store(true)
+	})
+}
+
+// openRaster opens path read-only as a raster: with the GeoTIFF driver
+// first, then, if that fails, with every GDAL driver.
+func openRaster(path string) (*godal.Dataset, error) {
+	setup()
+	ds, err := godal.Open(path, godal.RasterOnly())
+	if err == nil || allRegistered.Load() {
+		return ds, err
+	}
+	registerAll()
+	return godal.Open(path, godal.RasterOnly())
 }
 
 // quietly runs f with GDAL's error printing diverted, for the few GDAL calls

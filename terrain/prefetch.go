@@ -139,7 +139,7 @@ func (d *DEM) openReaders() error {
 	}
 	pool := []reader{{ds: d.ds, band: d.band}}
 	for len(pool) < d.readers {
-		ds, err := godal.Open(d.info.Path, godal.RasterOnly())
+		ds, err := openRaster(d.info.Path)
 		if err != nil {
 			for _, r := range pool[1:] {
 				r.ds.Close()
