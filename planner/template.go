@@ -136,14 +136,17 @@ func (t Template) halfPolyline(bed, side float64, offsets, levels []float64) (cu
 	x2 := x1 + t.SideSlope*t.BankHeight
 	x3 := x2 + t.BankTopWidth
 	top := bed + t.BankHeight
-	design := func(a float64) float64 {
+	// design returns the design line of the piece holding mid, evaluated at
+	// a: each interval is integrated on one piece, so a vertical face (zero
+	// slope) is taken from the correct side.
+	design := func(mid float64) func(float64) float64 {
 		switch {
-		case a <= x1:
-			return bed
-		case a <= x2:
-			return bed + (a-x1)/t.SideSlope
+		case mid <= x1:
+			return func(float64) float64 { return bed }
+		case mid <= x2:
+			return func(a float64) float64 { return bed + (a-x1)/t.SideSlope }
 		default:
-			return top
+			return func(float64) float64 { return top }
 		}
 	}
 	// Breakpoints: template vertices and ground vertices on this side.
@@ -169,7 +172,7 @@ func (t Template) halfPolyline(bed, side float64, offsets, levels []float64) (cu
 	}
 	for k := 1; k < len(pts); k++ {
 		if pts[k] > pts[k-1] {
-			if err := integrate(pts[k-1], pts[k], design); err != nil {
+			if err := integrate(pts[k-1], pts[k], design((pts[k-1]+pts[k])/2)); err != nil {
 				return 0, 0, err
 			}
 		}
