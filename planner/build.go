@@ -106,7 +106,7 @@ func prepare(p Problem, st *Settings) (*prepared, error) {
 	q.heights = hs
 
 	// Velocity-limited grades.
-	c := s.Consts
+	c := hydraulics.SI()
 	lim, err := hydraulics.VelocityLimitedSlopes(c, p.Section, p.Flow, p.Roughness, p.MaxVelocity, p.MinVelocity)
 	if err != nil {
 		return nil, fmt.Errorf("velocity limits: %w", err)

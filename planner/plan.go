@@ -154,6 +154,8 @@ type Totals struct {
 	DropCount     int     `json:"drop_count"`
 	CutVolume     float64 `json:"cut_volume"`     // m³
 	FillVolume    float64 `json:"fill_volume"`    // m³
+	WasteVolume   float64 `json:"waste_volume"`   // surplus cut to spoil, bank m³ (per segment, see Costs)
+	BorrowVolume  float64 `json:"borrow_volume"`  // fill brought in, compacted m³
 	EarthworkCost float64 `json:"earthwork_cost"` // including waste and borrow
 	DropCost      float64 `json:"drop_cost"`
 	TotalCost     float64 `json:"total_cost"`
@@ -289,6 +291,11 @@ func (q *prepared) evaluate(drops []dropSpec, grades []int) *Plan {
 			cum += vc
 			cumF += vf
 			earth += q.costs.Earthwork(vc, vf)
+			if usable := vc * (1 - q.costs.Shrinkage); usable > vf {
+				pl.Totals.WasteVolume += vc - vf/(1-q.costs.Shrinkage)
+			} else {
+				pl.Totals.BorrowVolume += vf - usable
+			}
 		}
 		st.CumCut, st.CumFill = cum, cumF
 	}
@@ -319,7 +326,7 @@ func (q *prepared) evaluate(drops []dropSpec, grades []int) *Plan {
 // water surface and velocity of every station from standard-step profiles
 // computed upstream from each reach's downstream control.
 func (q *prepared) hydraulics(pl *Plan, drops []dropSpec, grades []int) {
-	c := q.s.Consts
+	c := hydraulics.SI()
 	n := len(pl.Stations)
 	control := make([]float64, len(pl.Reaches)) // depth at each reach's downstream end
 	for r := range pl.Reaches {
@@ -427,7 +434,7 @@ func (q *prepared) hydraulics(pl *Plan, drops []dropSpec, grades []int) {
 // grade g carries the design flow with specific energy e (m), by bisection
 // above critical depth.
 func (q *prepared) depthForEnergy(e, g float64) (float64, bool) {
-	c := q.s.Consts
+	c := hydraulics.SI()
 	yc, err := hydraulics.CriticalDepth(c, q.p.Section, q.p.Flow)
 	if err != nil {
 		return 0, false

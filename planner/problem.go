@@ -139,11 +139,11 @@ func (c *Costs) Earthwork(cut, fill float64) float64 {
 func (c *Costs) Drop(h float64) float64 { return c.DropFixed + c.DropPerMetre*h }
 
 // Settings tune the optimiser and the structure design. The zero value (or
-// nil) gives the defaults each field names.
+// nil) gives the defaults each field names. The planner works in SI units
+// (m, s, m³/s) with hydraulics.SI() constants; convert at the edges.
 type Settings struct {
-	Consts hydraulics.Consts // unit constants; zero means hydraulics.SI()
-	Step   float64           // elevation step of the discretisation, m; 0 means 0.01
-	Volume VolumeMethod      // volumes between stations; zero is AverageEndArea
+	Step   float64      // elevation step of the discretisation, m; 0 means 0.01
+	Volume VolumeMethod // volumes between stations; zero is AverageEndArea
 
 	GradeCount int // number of default candidate grades; 0 means 5
 
@@ -167,9 +167,6 @@ func (s *Settings) withDefaults() Settings {
 	var out Settings
 	if s != nil {
 		out = *s
-	}
-	if out.Consts == (hydraulics.Consts{}) {
-		out.Consts = hydraulics.SI()
 	}
 	if out.Step == 0 {
 		out.Step = 0.01

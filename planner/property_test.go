@@ -60,6 +60,11 @@ func checkPlan(t *testing.T, p Problem, res *Result) {
 			t.Errorf("chainage %.0f m: cut %.3f fill %.3f beyond limits", st.Chainage, st.CutDepth, st.FillHeight)
 		}
 	}
+	// The per-segment pricing adds up to the totals (Costs doc formula).
+	tt, pc := res.Totals, res.Design.Costs
+	if e := pc.Cut*tt.CutVolume + pc.Fill*tt.FillVolume + pc.Waste*tt.WasteVolume + pc.Borrow*tt.BorrowVolume; math.Abs(e-tt.EarthworkCost) > 1e-9*e {
+		t.Errorf("earthwork cost %.6f, priced volumes %.6f", tt.EarthworkCost, e)
+	}
 	if math.Abs(res.Stats.Objective-res.Totals.TotalCost) > 1e-6*res.Totals.TotalCost {
 		t.Errorf("objective %.6f, plan cost %.6f", res.Stats.Objective, res.Totals.TotalCost)
 	}
