@@ -5,8 +5,6 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"math"
-	"strconv"
 	"strings"
 	"text/tabwriter"
 
@@ -17,23 +15,7 @@ import (
 // parseFlows reads a comma-separated list of discharges as fractions of the
 // design flow ("0.25,0.5,1"). Every item must be a finite positive number.
 func parseFlows(s string) ([]float64, error) {
-	if strings.TrimSpace(s) == "" {
-		return nil, usagef("--flows is empty; give fractions of the design flow such as 0.25,0.5,1")
-	}
-	parts := strings.Split(s, ",")
-	out := make([]float64, 0, len(parts))
-	for _, p := range parts {
-		p = strings.TrimSpace(p)
-		v, err := strconv.ParseFloat(p, 64)
-		if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
-			return nil, usagef("--flows: %q is not a number; give fractions of the design flow such as 0.25,0.5,1", p)
-		}
-		if v <= 0 {
-			return nil, usagef("--flows: %g is not a positive fraction of the design flow", v)
-		}
-		out = append(out, v)
-	}
-	return out, nil
+	return parseNumberList("flows", s, "fractions of the design flow such as 0.25,0.5,1")
 }
 
 // dropFlowResult is the outlet check at one discharge.

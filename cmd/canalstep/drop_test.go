@@ -107,7 +107,7 @@ func TestDropExitCodes(t *testing.T) {
 		{"negative side slope", withArgs(t42Args, "--side-slope", "-2"), 2, "--side-slope must be zero or positive"},
 		{"unknown transition", withArgs(t42Args, "--transition", "rounded"), 2, "unknown transition type"},
 		{"bad flow list", withArgs(t42Args, "--flows", "0.5,half"), 2, "not a number"},
-		{"zero flow fraction", withArgs(t42Args, "--flows", "0,1"), 2, "not a positive fraction"},
+		{"zero flow fraction", withArgs(t42Args, "--flows", "0,1"), 2, "is not positive"},
 		{"empty flow list", withArgs(t42Args, "--flows", ""), 2, "--flows is empty"},
 		{"negative depression", withArgs(t42Args, "--depression", "-0.5"), 2, "--depression must be zero or positive"},
 		// A supercritical canal below gives no tailwater: infeasible, exit 1.

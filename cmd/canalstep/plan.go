@@ -122,17 +122,21 @@ func applyDesignFile(fs *flag.FlagSet, path string) error {
 }
 
 // parseNumberList reads a comma-separated list of finite positive numbers
-// for the flag name; example shows the user a valid list.
+// for the flag name; example shows the user a valid list ("numbers such as
+// 0.5,1.0" unless it says otherwise).
 func parseNumberList(name, s, example string) ([]float64, error) {
+	if !strings.Contains(example, " ") {
+		example = "numbers such as " + example
+	}
 	if strings.TrimSpace(s) == "" {
-		return nil, usagef("--%s is empty; give numbers such as %s", name, example)
+		return nil, usagef("--%s is empty; give %s", name, example)
 	}
 	var out []float64
 	for _, p := range strings.Split(s, ",") {
 		p = strings.TrimSpace(p)
 		v, err := strconv.ParseFloat(p, 64)
 		if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
-			return nil, usagef("--%s: %q is not a number; give numbers such as %s", name, p, example)
+			return nil, usagef("--%s: %q is not a number; give %s", name, p, example)
 		}
 		if v <= 0 {
 			return nil, usagef("--%s: %g is not positive", name, v)
@@ -472,7 +476,7 @@ func parseAlternatives(s string) ([][]float64, error) {
 	}
 	var out [][]float64
 	for _, set := range strings.Split(s, ";") {
-		hs, err := parseNumberList("alternatives", set, "\"0.5;1.0;0.5,1.0\"")
+		hs, err := parseNumberList("alternatives", set, "drop-height sets such as \"0.5;1.0;0.5,1.0\"")
 		if err != nil {
 			return nil, err
 		}
