@@ -396,10 +396,15 @@ func (q *prepared) hydraulics(pl *Plan, drops []dropSpec, grades []int) {
 				depths[i] = q.depth[grades[r]]
 			}
 		}
+		fb := q.tpl[grades[r]].BankHeight - q.depth[grades[r]] // design freeboard, m
+		var low []string
 		for i, y := range depths {
 			st := &pl.Stations[start+i]
 			if i == 0 && r > 0 {
 				continue // the drop station keeps its upstream-side values
+			}
+			if y-q.depth[grades[r]] > fb/2 {
+				low = append(low, fmt.Sprintf("%.2f", st.Chainage))
 			}
 			st.Depth = y
 			st.WaterSurface = st.Invert + y
@@ -407,6 +412,10 @@ func (q *prepared) hydraulics(pl *Plan, drops []dropSpec, grades []int) {
 				st.WaterSurface = st.InvertDown + y
 			}
 			st.Velocity = hydraulics.Velocity(q.p.Section, q.p.Flow, y)
+		}
+		if len(low) > 0 {
+			pl.Warnings = append(pl.Warnings, fmt.Sprintf("reach %.2f–%.2f m: the backwater above the drop eats more than half the %.3f m freeboard at %d stations (chainage %s to %s m); widen the crest or raise the banks",
+				rc.From, rc.To, fb, len(low), low[0], low[len(low)-1]))
 		}
 		start = end
 	}
@@ -416,10 +425,6 @@ func (q *prepared) hydraulics(pl *Plan, drops []dropSpec, grades []int) {
 		st := &pl.Stations[i]
 		t.MaxVelocity = math.Max(t.MaxVelocity, st.Velocity)
 		t.MinVelocity = math.Min(t.MinVelocity, st.Velocity)
-		if st.WaterSurface > st.TopOfBank-0.5*(st.TopOfBank-st.Invert-st.Depth) && st.Depth > 0 {
-			// less than half the design freeboard left
-			pl.Warnings = append(pl.Warnings, fmt.Sprintf("chainage %.2f m: water surface %.3f m leaves less than half the freeboard below the top of bank %.3f m", st.Chainage, st.WaterSurface, st.TopOfBank))
-		}
 	}
 	if t.MaxVelocity > q.p.MaxVelocity*(1+1e-9) {
 		pl.Warnings = append(pl.Warnings, fmt.Sprintf("velocity reaches %.3f m/s, above the permissible %.3f m/s, in a drawdown", t.MaxVelocity, q.p.MaxVelocity))

@@ -153,6 +153,37 @@ func TestPlanHydraulics(t *testing.T) {
 	}
 }
 
+func TestBackwaterFreeboardWarning(t *testing.T) {
+	// A crest far narrower than the control width backs the water up by
+	// more than half the freeboard; the plan must say so. With the default
+	// crest (the bed width, 1 m) the backwater is small and no such warning
+	// appears.
+	p := testProblem(200, 3)
+	count := func(res *Result) int {
+		n := 0
+		for _, w := range res.Warnings {
+			if strings.Contains(w, "eats more than half") {
+				n++
+			}
+		}
+		return n
+	}
+	res, err := Optimize(p, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if n := count(res); n != 0 {
+		t.Errorf("default crest: %d freeboard warnings, want 0", n)
+	}
+	res, err = Optimize(p, &Settings{CrestWidth: 0.3})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if n := count(res); n == 0 || n > len(res.Drops) {
+		t.Errorf("0.3 m crest: %d freeboard warnings for %d drops", n, len(res.Drops))
+	}
+}
+
 func TestInfeasibleNamesConstraint(t *testing.T) {
 	// Level ground, then a 5 m rise between 300 and 400 m: the bed cannot
 	// climb, so the cut limit binds where the rise passes 2.5 m of cut.
