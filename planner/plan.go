@@ -357,8 +357,8 @@ func (q *prepared) hydraulics(pl *Plan, drops []dropSpec, grades []int) {
 				continue
 			}
 			dr.Checks = append(dr.Checks, chk)
-			if chk.JumpState == hydraulics.SweptOut {
-				dr.Warnings = append(dr.Warnings, fmt.Sprintf("jump swept out of the basin at %.0f %% of design flow", 100*f))
+			for _, w := range chk.Warnings {
+				dr.Warnings = append(dr.Warnings, fmt.Sprintf("at %.0f %% of design flow: %s", 100*f, w))
 			}
 		}
 		for _, w := range dr.Warnings {

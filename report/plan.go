@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"strconv"
+	"strings"
 
 	"canalstep/alignment"
 	"canalstep/planner"
@@ -70,14 +71,17 @@ func WriteStationsCSV(w io.Writer, st []alignment.Station, p *planner.Plan, u Un
 }
 
 var dropColumns = []string{"station", "chainage", "x", "y", "height", "upstream_invert", "crest_level",
-	"crest_raise", "basin_floor", "basin_depression", "downstream_invert", "basin_length", "end_sill", "jump_state"}
+	"crest_raise", "basin_floor", "basin_depression", "downstream_invert", "basin_length", "end_sill", "jump_state", "jump_states_checked"}
 
 // WriteDropsCSV writes one row per drop structure: station, chainage,
 // coordinates (DEM CRS), height (bed fall), upstream invert, crest level and
 // raise, basin floor and its depression below the downstream bed, downstream
-// invert, basin length, end sill height and the jump state at the design
-// flow. Lengths are in u's unit to the millimetre.
-func WriteDropsCSV(w io.Writer, st []alignment.Station, p *planner.Plan, u Units) error {
+// invert, basin length, end sill height, the jump state at the design flow
+// and the jump state at every checked flow ("25%:drowned;50%:in_basin;...",
+// flows as percentages of the design flow). Lengths are in u's unit to the
+// millimetre.
+func WriteDropsCSV(w io.Writer, st []alignment.Station, r *planner.Result, u Units) error {
+	p := &r.Plan
 	checkStations(st, p)
 	cw := csv.NewWriter(w)
 	if err := cw.Write(dropColumns); err != nil {
@@ -93,6 +97,11 @@ func WriteDropsCSV(w io.Writer, st []alignment.Station, p *planner.Plan, u Units
 		rec[8], rec[9], rec[10] = L(d.BasinFloor), L(d.BasinDepression), L(d.DownstreamInvert)
 		rec[11], rec[12] = L(d.BasinLength), L(d.EndSill)
 		rec[13] = string(d.JumpState)
+		states := make([]string, len(d.Checks))
+		for k, c := range d.Checks {
+			states[k] = strconv.FormatFloat(roundTo(100*c.Q/r.Design.Flow, 1), 'f', -1, 64) + "%:" + string(c.JumpState)
+		}
+		rec[14] = strings.Join(states, ";")
 		if err := cw.Write(rec); err != nil {
 			return err
 		}

@@ -423,7 +423,7 @@ func writePlan(dir string, p profile, r *planner.Result, u report.Units) error {
 		write func(io.Writer) error
 	}{
 		{"stations.csv", func(w io.Writer) error { return report.WriteStationsCSV(w, p.stations, &r.Plan, u) }},
-		{"drops.csv", func(w io.Writer) error { return report.WriteDropsCSV(w, p.stations, &r.Plan, u) }},
+		{"drops.csv", func(w io.Writer) error { return report.WriteDropsCSV(w, p.stations, r, u) }},
 		{"summary.json", func(w io.Writer) error { return report.WriteSummaryJSON(w, report.NewSummary(p.name, r)) }},
 	}
 	for _, fl := range files {
@@ -456,9 +456,37 @@ func printPlanSummary(w io.Writer, p profile, r *planner.Result, u report.Units,
 			fmt.Fprintf(w, "  saving against even spacing: %.0f (%.1f %%)\n", bt.TotalCost-t.TotalCost, 100*(bt.TotalCost-t.TotalCost)/bt.TotalCost)
 		}
 	}
+	var drowned, swept []string
+	for _, d := range r.Drops {
+		var isDrowned, isSwept bool
+		for _, c := range d.Checks {
+			isDrowned = isDrowned || c.JumpState == hydraulics.Drowned
+			isSwept = isSwept || c.JumpState == hydraulics.SweptOut
+		}
+		if isDrowned {
+			drowned = append(drowned, report.StationLabel(d.Chainage, u))
+		}
+		if isSwept {
+			swept = append(swept, report.StationLabel(d.Chainage, u))
+		}
+	}
+	if len(swept) > 0 {
+		fmt.Fprintf(w, "  JUMP SWEPT OUT at some checked flow (redesign the basin): %s\n", listOf(swept, 12))
+	}
+	if len(drowned) > 0 {
+		fmt.Fprintf(w, "  drowned jump at some checked flow (drowning hazard: fence, sign, no public access): %s\n", listOf(drowned, 12))
+	}
 	fmt.Fprintf(w, "  velocity %.2f to %.2f %s, max cut %.2f %s, max fill %.2f %s, %d warnings (see summary.json)\n",
 		u.Velocity(t.MinVelocity), u.Velocity(t.MaxVelocity), u.VelocityUnit(),
 		u.Length(t.MaxCutDepth), u.LengthUnit(), u.Length(t.MaxFillHeight), u.LengthUnit(), len(r.Warnings))
+}
+
+// listOf joins up to max items and says how many more there are.
+func listOf(items []string, max int) string {
+	if len(items) <= max {
+		return strings.Join(items, ", ")
+	}
+	return fmt.Sprintf("%s and %d more", strings.Join(items[:max], ", "), len(items)-max)
 }
 
 func feasibleNote(b *planner.Baseline) string {
