@@ -4,7 +4,8 @@ package terrain
 type block struct {
 	key    int // by*ntx + bx
 	x0, y0 int // first column and row
-	w      int // width in cells (edge blocks are narrower)
+	w      int // row stride in cells (edge blocks may hold fewer columns)
+	h      int // rows
 	data   []float32
 	used   uint64 // tick of the last use, for eviction
 }

@@ -125,7 +125,8 @@ type DEM struct {
 	cache      blockCache
 	blocksRead int
 	readers    int      // parallel decoders wanted (Options.Readers)
-	pool       []reader // open decoders; pool[0] is ds itself
+	pool       []reader // decoders; pool[0] uses ds
+	direct     bool     // cached blocks are the file's Float32 blocks: use GDALReadBlock
 	missing    []int    // scratch for prefetch
 	ahead      lookahead
 }
@@ -243,6 +244,8 @@ func newDEM(ds *godal.Dataset, path, zu string, zf float64, opt Options) (*DEM, 
 	if d.readers == 0 {
 		d.readers = min(runtime.GOMAXPROCS(0), 4)
 	}
+	d.pool = []reader{{band: band}}
+	d.direct = bs.DataType == godal.Float32 && tw == bs.BlockSizeX && th == bs.BlockSizeY
 	d.cache.init(nblocks)
 	return d, nil
 }

@@ -2,8 +2,10 @@ package terrain
 
 /*
 #cgo pkg-config: gdal
+#include <stdlib.h>
 #include <string.h>
 #include <cpl_error.h>
+#include <gdal.h>
 
 // The handler below keeps the last GDAL/PROJ error message of the calling
 // thread instead of printing it on stderr, so that failures reach the caller
@@ -28,10 +30,21 @@ static void canalstepPopQuiet(char *out, int n) {
 	strncpy(out, canalstepLastErr, n - 1);
 	out[n - 1] = 0;
 }
+
+// Raw dataset handles for decoding whole blocks straight into the caller's
+// buffer with GDALReadBlock, bypassing GDAL's block cache.
+static GDALDatasetH canalstepOpenRaw(const char *path) {
+	return GDALOpenEx(path, GDAL_OF_RASTER | GDAL_OF_READONLY, NULL, NULL, NULL);
+}
+
+static int canalstepReadBlock(GDALDatasetH ds, int bx, int by, void *buf) {
+	return (int)GDALReadBlock(GDALGetRasterBand(ds, 1), bx, by, buf);
+}
 */
 import "C"
 
 import (
+	"fmt"
 	"os"
 	"runtime"
 	"sync"
@@ -103,4 +116,38 @@ func quietly(f func()) string {
 		f()
 	}()
 	return C.GoString((*C.char)(unsafe.Pointer(&buf[0])))
+}
+
+// rawDataset is a GDAL dataset opened through the C API, for decoding whole
+// blocks with GDALReadBlock: the block is decoded straight into our buffer,
+// without a copy in GDAL's block cache. Like any GDAL dataset, it must not
+// be used by two threads at once.
+type rawDataset struct{ h C.GDALDatasetH }
+
+func openRaw(path string) (rawDataset, error) {
+	cpath := C.CString(path)
+	defer C.free(unsafe.Pointer(cpath))
+	var h C.GDALDatasetH
+	msg := quietly(func() { h = C.canalstepOpenRaw(cpath) })
+	if h == nil {
+		return rawDataset{}, fmt.Errorf("cannot open DEM %s: %s", path, msg)
+	}
+	return rawDataset{h}, nil
+}
+
+// readBlock decodes block (bx, by) of band 1 into buf, which must hold a
+// whole block of the band's own data type (Float32 here).
+func (r rawDataset) readBlock(bx, by int, buf []float32) error {
+	var rc C.int
+	msg := quietly(func() { rc = C.canalstepReadBlock(r.h, C.int(bx), C.int(by), unsafe.Pointer(&buf[0])) })
+	if rc != 0 {
+		return fmt.Errorf("read block (%d, %d): %s", bx, by, msg)
+	}
+	return nil
+}
+
+func (r rawDataset) close() {
+	if r.h != nil {
+		C.GDALClose(r.h)
+	}
 }

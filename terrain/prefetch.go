@@ -21,12 +21,13 @@ type lookahead struct {
 	done   int // points before this index have been prefetched
 }
 
-// reader is a GDAL handle used to decode blocks in parallel with the
-// others; a GDAL dataset must not be used by two threads at once, so each
-// parallel reader has its own.
+// reader is one GDAL handle that decodes blocks; a GDAL dataset must not be
+// used by two threads at once, so each parallel reader has its own. pool[0]
+// reads through the DEM's own dataset.
 type reader struct {
-	ds   *godal.Dataset
-	band godal.Band
+	ds   *godal.Dataset // opened for this reader (nil for pool[0])
+	band godal.Band     // for windowed reads (RasterIO)
+	raw  rawDataset     // for whole-block reads, opened on first use
 }
 
 // prefetch decodes, in parallel, the blocks that the points in xs, ys need
@@ -93,12 +94,7 @@ func (d *DEM) prefetch(xs, ys []float64) error {
 	// them.
 	blocks := make([]*block, len(missing))
 	for i, key := range missing {
-		bx, by := key%d.ntx, key/d.ntx
-		x0, y0 := bx*d.tw, by*d.th
-		w, h := min(d.tw, d.w-x0), min(d.th, d.h-y0)
-		b := d.cache.slot(w * h)
-		b.key, b.x0, b.y0, b.w = key, x0, y0, w
-		blocks[i] = b
+		blocks[i] = d.newSlot(key)
 	}
 	errs := make([]error, len(d.pool))
 	var wg sync.WaitGroup
@@ -106,12 +102,9 @@ func (d *DEM) prefetch(xs, ys []float64) error {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
-			band := d.pool[r].band
 			for i := r; i < len(blocks); i += len(d.pool) {
-				b := blocks[i]
-				h := len(b.data) / b.w
-				if err := band.Read(b.x0, b.y0, b.data, b.w, h); err != nil {
-					errs[r] = fmt.Errorf("read DEM block at column %d, row %d: %w", b.x0, b.y0, err)
+				if err := d.fill(&d.pool[r], blocks[i]); err != nil {
+					errs[r] = err
 					return
 				}
 			}
@@ -132,33 +125,68 @@ func (d *DEM) prefetch(xs, ys []float64) error {
 }
 
 // openReaders opens the extra GDAL handles for parallel decoding, once.
-// The first reader is the DEM's own handle.
 func (d *DEM) openReaders() error {
-	if d.pool != nil {
-		return nil
-	}
-	pool := []reader{{ds: d.ds, band: d.band}}
-	for len(pool) < d.readers {
-		ds, err := openRaster(d.info.Path)
+	for len(d.pool) < d.readers {
+		r := reader{}
+		var err error
+		if d.direct {
+			r.raw, err = openRaw(d.info.Path)
+		} else if r.ds, err = openRaster(d.info.Path); err == nil {
+			r.band = r.ds.Bands()[0]
+		}
 		if err != nil {
-			for _, r := range pool[1:] {
-				r.ds.Close()
-			}
-			d.readers = 1 // do not try again
+			d.readers = len(d.pool) // do not try again
 			return err
 		}
-		pool = append(pool, reader{ds: ds, band: ds.Bands()[0]})
+		d.pool = append(d.pool, r)
 	}
-	d.pool = pool
 	return nil
 }
 
-// closeReaders closes the extra handles.
+// closeReaders closes the readers' own handles.
 func (d *DEM) closeReaders() error {
 	var errs []error
-	for _, r := range d.pool[min(1, len(d.pool)):] {
-		errs = append(errs, r.ds.Close())
+	for _, r := range d.pool {
+		r.raw.close()
+		if r.ds != nil {
+			errs = append(errs, r.ds.Close())
+		}
 	}
 	d.pool = nil
 	return errors.Join(errs...)
+}
+
+// newSlot takes a cache slot for block key and sets its geometry. Whole
+// block reads fill a full block even at the raster's edges.
+func (d *DEM) newSlot(key int) *block {
+	x0, y0 := key%d.ntx*d.tw, key/d.ntx*d.th
+	w, h := min(d.tw, d.w-x0), min(d.th, d.h-y0)
+	var b *block
+	if d.direct {
+		b = d.cache.slot(d.tw * d.th)
+		w = d.tw
+	} else {
+		b = d.cache.slot(w * h)
+	}
+	b.key, b.x0, b.y0, b.w, b.h = key, x0, y0, w, h
+	return b
+}
+
+// fill decodes block b with reader r.
+func (d *DEM) fill(r *reader, b *block) error {
+	var err error
+	if d.direct {
+		if r.raw.h == nil {
+			r.raw, err = openRaw(d.info.Path)
+		}
+		if err == nil {
+			err = r.raw.readBlock(b.x0/d.tw, b.y0/d.th, b.data)
+		}
+	} else {
+		err = r.band.Read(b.x0, b.y0, b.data, b.w, b.h)
+	}
+	if err != nil {
+		return fmt.Errorf("read DEM block at column %d, row %d: %w", b.x0, b.y0, err)
+	}
+	return nil
 }

@@ -210,14 +210,11 @@ func (d *DEM) block(bx, by int) (*block, error) {
 			return b, nil
 		}
 	}
-	x0, y0 := bx*d.tw, by*d.th
-	w, h := min(d.tw, d.w-x0), min(d.th, d.h-y0)
-	b := d.cache.slot(w * h)
-	if err := d.band.Read(x0, y0, b.data, w, h); err != nil {
+	b := d.newSlot(key)
+	if err := d.fill(&d.pool[0], b); err != nil {
 		d.cache.release()
-		return nil, fmt.Errorf("read DEM block at column %d, row %d: %w", x0, y0, err)
+		return nil, err
 	}
-	b.key, b.x0, b.y0, b.w = key, x0, y0, w
 	d.blocksRead++
 	d.cache.add(b)
 	return b, nil

@@ -5,11 +5,14 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"path/filepath"
 	"slices"
 	"strconv"
 	"strings"
 	"sync"
 	"testing"
+
+	"github.com/airbusgeo/godal"
 
 	"canalstep/terrain"
 )
@@ -419,5 +422,50 @@ func TestSouthUp(t *testing.T) {
 		if math.Abs(got[i]-want[i]) > 1e-9 { // exact plane, float64 rounding only
 			t.Errorf("point %d: got %v, want %v", i, got[i], want[i])
 		}
+	}
+}
+
+// TestInt16DEM samples a tiled Int16 DEM with a scale of 0.1 m (as DEMs
+// stored in decimetres are), which is read through GDAL's windowed reads
+// with type conversion rather than whole Float32 blocks.
+func TestInt16DEM(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "int16.tif")
+	const w, h = 300, 280
+	godal.RegisterAll()
+	ds, err := godal.Create(godal.GTiff, path, 1, godal.Int16, w, h,
+		godal.CreationOption("TILED=YES", "BLOCKXSIZE=256", "BLOCKYSIZE=256", "COMPRESS=DEFLATE"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	data := make([]int16, w*h)
+	for r := range h {
+		for c := range w {
+			data[r*w+c] = int16(1000 + 3*c - 2*r) // decimetres
+		}
+	}
+	sr, err := godal.NewSpatialRefFromEPSG(32633)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer sr.Close()
+	b := ds.Bands()[0]
+	for _, err := range []error{ds.SetSpatialRef(sr), ds.SetGeoTransform(fxGeoTransform()),
+		b.SetScaleOffset(0.1, 0), b.Write(0, 0, data, w, h), ds.Close()} {
+		if err != nil {
+			t.Fatal(err)
+		}
+	}
+	d := mustOpen(t, path, terrain.Options{})
+	if in := d.Info(); in.DataType != "Int16" || in.Scale != 0.1 {
+		t.Fatalf("Info: %s, scale %v", in.DataType, in.Scale)
+	}
+	// A point 260.25 columns and 270.5 rows from the first centre, in the
+	// partial edge block: 0.1·(1000 + 3·260.25 − 2·270.5) m.
+	out := []float64{0}
+	if err := d.Sample([]float64{fxX0 + 260.75*fxCell}, []float64{fxY0 - 271*fxCell}, out); err != nil {
+		t.Fatal(err)
+	}
+	if want := 0.1 * (1000 + 3*260.25 - 2*270.5); math.Abs(out[0]-want) > 1e-9 {
+		t.Errorf("got %.9f m, want %.9f m", out[0], want)
 	}
 }
