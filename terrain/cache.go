@@ -13,20 +13,47 @@ type block struct {
 // blockCache holds at most cap decoded blocks and evicts the least recently
 // used one. Lookups along a route hit the same block many times in a row, so
 // the last block found is remembered apart from the map.
+//
+// Every slot has room for blockLen values, so an evicted slot can take any
+// block and the cache never holds more than cap×blockLen values. Slots are
+// carved from slabs mapped with allocFloat32s, so that a fresh process fills
+// its cache with a few large page faults rather than one per 4 KB.
 type blockCache struct {
-	cap     int
-	m       map[int]*block
-	last    *block
-	tick    uint64
-	pending int // slots handed out and not yet added or released
+	cap      int
+	blockLen int // float32 values per slot
+	m        map[int]*block
+	last     *block
+	tick     uint64
+	pending  int // slots handed out and not yet added or released
+	made     int // slots carved so far
+	slab     []float32
+	frees    []func()
+	spare    []*block // released slots
 }
 
-func (c *blockCache) init(capacity int) {
-	c.cap = capacity
-	c.m = make(map[int]*block, capacity)
-	c.last = nil
-	c.tick = 0
-	c.pending = 0
+// init empties the cache, sets its capacity in slots of blockLen values and
+// unmaps the previous slabs.
+func (c *blockCache) init(capacity, blockLen int) {
+	for _, f := range c.frees {
+		f()
+	}
+	*c = blockCache{cap: capacity, blockLen: blockLen, m: make(map[int]*block, capacity)}
+}
+
+// newSlot carves a slot from the current slab, mapping a new slab of at
+// least 32 slots (and at least 2 MB) when it is used up.
+func (c *blockCache) newSlot() []float32 {
+	if len(c.slab) < c.blockLen {
+		n := max(32, hugePage/4/c.blockLen)
+		n = max(min(n, c.cap-c.made), 1)
+		var free func()
+		c.slab, free = allocFloat32s(n * c.blockLen)
+		c.frees = append(c.frees, free)
+	}
+	s := c.slab[:c.blockLen:c.blockLen]
+	c.slab = c.slab[c.blockLen:]
+	c.made++
+	return s
 }
 
 // get returns the cached block with key, or nil.
@@ -43,13 +70,19 @@ func (c *blockCache) get(key int) *block {
 	return b
 }
 
-// slot returns a block to fill with n values: a new one while the cache
-// has room, else the least recently used one, removed from the map. The
-// caller fills it and calls add, or release if filling failed.
+// slot returns a block to fill with n ≤ blockLen values: a new one while the
+// cache has room, else the least recently used one, removed from the map.
+// The caller fills it and calls add, or release if filling failed.
 func (c *blockCache) slot(n int) *block {
 	c.pending++
+	if k := len(c.spare); k > 0 {
+		b := c.spare[k-1]
+		c.spare = c.spare[:k-1]
+		b.data = b.data[:n]
+		return b
+	}
 	if len(c.m)+c.pending <= c.cap || len(c.m) == 0 {
-		return &block{data: make([]float32, n)}
+		return &block{data: c.newSlot()[:n]}
 	}
 	var lru *block
 	for _, b := range c.m {
@@ -61,15 +94,15 @@ func (c *blockCache) slot(n int) *block {
 	if c.last == lru {
 		c.last = nil
 	}
-	if cap(lru.data) < n {
-		lru.data = make([]float32, n)
-	}
 	lru.data = lru.data[:n]
 	return lru
 }
 
-// release gives back a slot that could not be filled.
-func (c *blockCache) release() { c.pending-- }
+// release gives back slot b, which could not be filled.
+func (c *blockCache) release(b *block) {
+	c.pending--
+	c.spare = append(c.spare, b)
+}
 
 // add inserts a filled block.
 func (c *blockCache) add(b *block) {

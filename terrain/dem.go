@@ -246,7 +246,7 @@ func newDEM(ds *godal.Dataset, path, zu string, zf float64, opt Options) (*DEM, 
 	}
 	d.pool = []reader{{band: band}}
 	d.direct = bs.DataType == godal.Float32 && tw == bs.BlockSizeX && th == bs.BlockSizeY
-	d.cache.init(nblocks)
+	d.cache.init(nblocks, tw*th)
 	return d, nil
 }
 
@@ -286,6 +286,6 @@ func (d *DEM) Close() error {
 		return nil
 	}
 	d.closed = true
-	d.cache.init(0)
+	d.cache.init(0, 0)
 	return errors.Join(d.closeReaders(), d.ds.Close())
 }

@@ -112,8 +112,8 @@ func (d *DEM) prefetch(xs, ys []float64) error {
 	}
 	wg.Wait()
 	if err := errors.Join(errs...); err != nil {
-		for range blocks {
-			d.cache.release()
+		for _, b := range blocks {
+			d.cache.release(b)
 		}
 		return err
 	}

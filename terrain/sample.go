@@ -212,7 +212,7 @@ func (d *DEM) block(bx, by int) (*block, error) {
 	}
 	b := d.newSlot(key)
 	if err := d.fill(&d.pool[0], b); err != nil {
-		d.cache.release()
+		d.cache.release(b)
 		return nil, err
 	}
 	d.blocksRead++
