@@ -37,7 +37,7 @@ func (c *blockCache) init(capacity, blockLen int) {
 	for _, f := range c.frees {
 		f()
 	}
-	*c = blockCache{cap: capacity, blockLen: blockLen, m: make(map[int]*block, capacity)}
+	*c = blockCache{cap: capacity, blockLen: blockLen, m: make(map[int]*block, min(capacity, 64))}
 }
 
 // newSlot carves a slot from the current slab, mapping a new slab of at

@@ -42,7 +42,8 @@ type Options struct {
 	// Method is the interpolation; the zero value is Bilinear.
 	Method Method
 	// CacheBlocks bounds the number of decoded blocks kept in memory. Zero
-	// means enough blocks for about 32 MB, and at least 16.
+	// means enough blocks for about 32 MB, and at least 16; never more than
+	// the raster has.
 	CacheBlocks int
 	// Readers is the number of GDAL handles that decode blocks in parallel
 	// (each extra one is a second open of the same path). Zero means
@@ -199,6 +200,8 @@ func newDEM(ds *godal.Dataset, path, zu string, zf float64, opt Options) (*DEM, 
 	nblocks := opt.CacheBlocks
 	if nblocks == 0 {
 		nblocks = max(16, defaultCacheBytes/(4*tw*th))
+		// More slots than the raster has blocks would never be used.
+		nblocks = min(nblocks, ((st.SizeX+tw-1)/tw)*((st.SizeY+th-1)/th))
 	}
 	d := &DEM{
 		ds:   ds,
