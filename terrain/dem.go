@@ -62,8 +62,8 @@ var (
 // Metres per vertical unit accepted in Options.ZUnits.
 var zUnitToMetre = map[string]float64{
 	"m":     1,
-	"ft":    0.3048,        // international foot: exact by definition (1959 agreement)
-	"us-ft": 1200.0 / 3937, // US survey foot: exact by definition
+	"ft":    0.3048,        // international foot, exact (1959 agreement; from memory)
+	"us-ft": 1200.0 / 3937, // US survey foot, exact (from memory)
 }
 
 // maxTileSide bounds a cached block's side in cells, so that one cached

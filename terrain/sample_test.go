@@ -225,8 +225,9 @@ func TestOutside(t *testing.T) {
 }
 
 // TestUnitsAndScale checks the vertical unit conversion (international foot
-// = 0.3048 m exactly, US survey foot = 1200/3937 m exactly: NIST Handbook
-// 44, Appendix C, 2023) and the band's scale and offset.
+// = 0.3048 m exactly, US survey foot = 1200/3937 m exactly; both from
+// memory, as defined by the 1959 international yard and pound agreement and
+// listed in NIST Handbook 44, Appendix C) and the band's scale and offset.
 func TestUnitsAndScale(t *testing.T) {
 	dir := t.TempDir()
 	g := planar(4, 4, 1000, 0, 0) // 1000 everywhere
