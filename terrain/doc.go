@@ -13,8 +13,8 @@
 // caller whether a CRS is geographic and what its linear unit is, so it can
 // decide where to measure chainage.
 //
-// [WriteGeoTIFF] writes a tiled, compressed GeoTIFF atomically; tests, the
-// demo and the benchmark use it.
+// Tests, the demo and the benchmark write rasters with [WriteGeoTIFF]: a
+// tiled, compressed GeoTIFF, written atomically.
 //
 // GDAL's own block cache is global to the process. Unless GDAL_CACHEMAX is
 // already set in the environment, the first call into this package sets it
