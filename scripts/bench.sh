@@ -4,6 +4,7 @@
 #
 #   scripts/bench.sh            all parts
 #   scripts/bench.sh profile    DEM sampling along an alignment only
+#   scripts/bench.sh plan       the optimiser alone and against CBC
 #
 # Inputs are generated once into bench-out/ (BENCH_OUT overrides): a
 # 20000×20000 Float32 DEM (10 m cells, DEFLATE, 256² tiles, about 1.3 GB)
@@ -19,7 +20,7 @@ BENCH_OUT=${BENCH_OUT:-bench-out}
 BENCH_RUNS=${BENCH_RUNS:-10}
 PY=/usr/bin/python3 # python3-rasterio is installed for the system Python
 
-bench_parts=(profile)
+bench_parts=(profile plan)
 
 bench_build() {
 	mkdir -p bin
@@ -129,6 +130,23 @@ PYEOF
 	if [ "$have_profile" = 1 ]; then
 		bin/canalstep profile --dem "$dem" --alignment "$route" --spacing 1 --out "$prof_out" 2>&1 | grep -i block | sed 's/^/  canalstep: /' || true
 	fi
+}
+
+# bench_plan: the drop-placement optimiser.
+#   go benchmarks   Optimize on 10 km and 100 km of seeded ground (10 m
+#                   stations, 3 heights, 5 grades, 1 cm step), one core;
+#                   the 100 km / 10 km ratio shows the growth with length
+#   CBC             scripts/bench-plan.sh: the same single-grade MIP at 400
+#                   stations solved by CBC and by the optimiser, same optimum
+bench_plan() {
+	echo
+	echo "== plan: Optimize on one core (go test -bench)"
+	go test ./planner -run '^$' -bench '^BenchmarkOptimize(10|100)km$' -benchmem -count 3 -cpu 1 | tee "$BENCH_OUT/plan-bench.txt" | grep '^Benchmark'
+	awk '/^BenchmarkOptimize10km/ {a += $3; na++} /^BenchmarkOptimize100km/ {b += $3; nb++}
+		END { if (na && nb) printf "  100 km / 10 km time ratio: %.1f (10 = linear)\n", (b / nb) / (a / na) }' "$BENCH_OUT/plan-bench.txt"
+	echo
+	echo "== plan: against CBC"
+	BENCH_OUT="$BENCH_OUT" bash scripts/bench-plan.sh
 }
 
 bench_main() {
