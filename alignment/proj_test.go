@@ -5,9 +5,9 @@ package alignment
 
 import (
 	"bytes"
+	"canalstep/internal/reftool"
 	"fmt"
 	"math"
-	"os"
 	"os/exec"
 	"strconv"
 	"strings"
@@ -16,26 +16,12 @@ import (
 	"github.com/paulmach/orb"
 )
 
-// needTool returns the path of a command-line tool; when it is missing the
-// test fails under CI (CI set) and is skipped otherwise.
-func needTool(t *testing.T, name string) string {
-	t.Helper()
-	p, err := exec.LookPath(name)
-	if err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("%s not found (install proj-bin): %v", name, err)
-		}
-		t.Skipf("%s not found (install proj-bin)", name)
-	}
-	return p
-}
-
 // cs2cs is a Transformer that runs PROJ's cs2cs from src to dst (both
 // given in lon/lat or easting/northing order: OGC:CRS84 or projected).
 // A PROJ string ("+proj=...") must reach cs2cs as separate arguments joined
 // by +to, with the other side spelled as a PROJ string too.
 func cs2cs(t *testing.T, src, dst string) Transformer {
-	bin := needTool(t, "cs2cs")
+	bin := reftool.Need(t, "cs2cs")
 	args := []string{"-f", "%.10f", src, dst}
 	if strings.HasPrefix(src, "+") || strings.HasPrefix(dst, "+") {
 		projString := func(s string) []string {
@@ -80,7 +66,7 @@ func cs2cs(t *testing.T, src, dst string) Transformer {
 // geodLength sums the WGS 84 geodesic lengths (m) of the line's segments
 // with PROJ's geod -I (which reads lat lon pairs).
 func geodLength(t *testing.T, line orb.LineString) float64 {
-	bin := needTool(t, "geod")
+	bin := reftool.Need(t, "geod")
 	var in bytes.Buffer
 	for i := 1; i < len(line); i++ {
 		fmt.Fprintf(&in, "%.12f %.12f %.12f %.12f\n", line[i-1][1], line[i-1][0], line[i][1], line[i][0])

@@ -2,6 +2,7 @@ package planner
 
 import (
 	"bytes"
+	"canalstep/internal/reftool"
 	"flag"
 	"fmt"
 	"math"
@@ -39,25 +40,11 @@ func mipProblem(n int, seed uint64) (Problem, *Settings) {
 	return p, &Settings{TransitionLength: 1, BasinLength: func(float64) float64 { return 6 }}
 }
 
-// needTool finds an external reference tool; it fails when CI is set and
-// skips otherwise.
-func needTool(t testing.TB, name, pkg string) string {
-	t.Helper()
-	path, err := exec.LookPath(name)
-	if err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("%s not found (install Debian package %s)", name, pkg)
-		}
-		t.Skipf("%s not found (Debian package %s)", name, pkg)
-	}
-	return path
-}
-
 // glpsolObjective solves an LP file with glpsol and returns the MIP objective
 // from its solution file.
 func glpsolObjective(t testing.TB, lp string) float64 {
 	t.Helper()
-	glpsol := needTool(t, "glpsol", "glpk-utils")
+	glpsol := reftool.Need(t, "glpsol")
 	out := lp + ".sol"
 	cmd := exec.Command(glpsol, "--lp", lp, "-w", out)
 	var stderr bytes.Buffer

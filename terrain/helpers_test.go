@@ -2,9 +2,9 @@ package terrain_test
 
 import (
 	"bytes"
+	"canalstep/internal/reftool"
 	"math"
 	"math/rand/v2"
-	"os"
 	"os/exec"
 	"path/filepath"
 	"strconv"
@@ -67,24 +67,10 @@ func roughGrid(w, h int, seed uint64) terrain.Grid {
 		NoData: -9999, HasNoData: true, Data: data}
 }
 
-// needTool returns the path of an external reference tool. When it is
-// missing the test fails under CI (CI=true) and is skipped elsewhere.
-func needTool(tb testing.TB, name string) string {
-	tb.Helper()
-	p, err := exec.LookPath(name)
-	if err != nil {
-		if os.Getenv("CI") == "true" {
-			tb.Fatalf("%s is needed for this check (install gdal-bin / proj-bin): %v", name, err)
-		}
-		tb.Skipf("%s not installed", name)
-	}
-	return p
-}
-
 // runLines runs a tool with input on stdin and returns its output lines.
 func runLines(tb testing.TB, stdin string, name string, args ...string) []string {
 	tb.Helper()
-	cmd := exec.Command(needTool(tb, name), args...)
+	cmd := exec.Command(reftool.Need(tb, name), args...)
 	cmd.Stdin = strings.NewReader(stdin)
 	var stderr bytes.Buffer
 	cmd.Stderr = &stderr

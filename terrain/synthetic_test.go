@@ -11,6 +11,7 @@ import (
 	"testing"
 	"unsafe"
 
+	"canalstep/internal/reftool"
 	"canalstep/terrain"
 )
 
@@ -190,7 +191,7 @@ func TestDemoAlignmentsGeoJSON(t *testing.T) {
 // back with GDAL's gdallocationinfo (gdal-bin), an outside check that the
 // grid's orientation, georeferencing and values survive the trip.
 func TestSyntheticFanGeoTIFF(t *testing.T) {
-	needTool(t, "gdallocationinfo")
+	reftool.Need(t, "gdallocationinfo")
 	g := fan(1)
 	path := filepath.Join(t.TempDir(), "fan.tif")
 	if err := terrain.WriteGeoTIFF(path, g); err != nil {

@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"canalstep/internal/reftool"
 	"context"
 	"encoding/csv"
 	"fmt"
@@ -26,20 +27,6 @@ const (
 
 // plane is the analytic ground of the planar fixture, m.
 func plane(x, y float64) float64 { return 120 + 0.004*(x-fxX0) + 0.01*(y-(fxY0-3000)) }
-
-// needTool returns the path of an external reference tool; a missing tool
-// fails the test under CI and skips it elsewhere.
-func needTool(tb testing.TB, name string) string {
-	tb.Helper()
-	p, err := exec.LookPath(name)
-	if err != nil {
-		if os.Getenv("CI") == "true" {
-			tb.Fatalf("%s is needed for this check (scripts/test.sh installs it): %v", name, err)
-		}
-		tb.Skipf("%s not installed", name)
-	}
-	return p
-}
 
 // writePlaneDEM writes the planar fixture; cells whose centre lies in the
 // nodata box (x0, y0, x1, y1), if given, are nodata.
@@ -178,7 +165,7 @@ func TestProfilePlanar(t *testing.T) {
 // such a projection departs from 1 by about (x/R)²/2, a few parts per
 // million 20 km off its meridian: Snyder 1987, USGS PP 1395, from memory).
 func TestProfileGeographicLengthAgreesWithGeod(t *testing.T) {
-	geod := needTool(t, "geod")
+	geod := reftool.Need(t, "geod")
 	dir := t.TempDir()
 	const n = 400 // 0.001° cells over lon 20.8..21.2, lat 40.8..41.2
 	g := terrain.Grid{Width: n, Height: n, GeoTransform: [6]float64{20.8, 0.001, 0, 41.2, 0, -0.001},
