@@ -5,7 +5,6 @@ package alignment
 
 import (
 	"bytes"
-	"canalstep/internal/reftool"
 	"fmt"
 	"math"
 	"os/exec"
@@ -14,6 +13,8 @@ import (
 	"testing"
 
 	"github.com/paulmach/orb"
+
+	"canalstep/internal/reftool"
 )
 
 // cs2cs is a Transformer that runs PROJ's cs2cs from src to dst (both

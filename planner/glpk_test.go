@@ -2,7 +2,6 @@ package planner
 
 import (
 	"bytes"
-	"canalstep/internal/reftool"
 	"flag"
 	"fmt"
 	"math"
@@ -15,6 +14,7 @@ import (
 	"testing"
 	"time"
 
+	"canalstep/internal/reftool"
 	"canalstep/planner/hydraulics"
 )
 

@@ -2,7 +2,6 @@ package terrain_test
 
 import (
 	"bytes"
-	"canalstep/internal/reftool"
 	"math"
 	"math/rand/v2"
 	"os/exec"
@@ -11,6 +10,7 @@ import (
 	"strings"
 	"testing"
 
+	"canalstep/internal/reftool"
 	"canalstep/terrain"
 )
 

@@ -2,7 +2,6 @@ package main
 
 import (
 	"bytes"
-	"canalstep/internal/reftool"
 	"context"
 	"encoding/csv"
 	"fmt"
@@ -14,6 +13,7 @@ import (
 	"strings"
 	"testing"
 
+	"canalstep/internal/reftool"
 	"canalstep/terrain"
 )
 
