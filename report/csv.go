@@ -1,10 +1,11 @@
 package report
 
 import (
-	"encoding/csv"
+	"fmt"
 	"io"
 	"math"
 	"strconv"
+	"strings"
 )
 
 // GroundRow is one station of a ground profile. Chainage and Ground are in
@@ -21,37 +22,59 @@ type GroundRow struct {
 // station,chainage,x,y,lon,lat,ground. Chainage and ground are printed in u's
 // length unit to the millimetre (0.001 ft in US units), x and y to the
 // millimetre of the DEM's CRS unit, lon and lat to 1e-8 degree (about 1 mm).
+// No field needs CSV quoting (station labels are digits, '+', '-' and '.'),
+// so rows are formatted straight into one buffer: profiles run to hundreds of
+// thousands of stations.
 func WriteGroundCSV(w io.Writer, rows []GroundRow, u Units) error {
-	cw := csv.NewWriter(w)
-	if err := cw.Write([]string{"station", "chainage", "x", "y", "lon", "lat", "ground"}); err != nil {
-		return err
-	}
-	rec := make([]string, 7)
+	b := make([]byte, 0, 64*1024)
+	b = append(b, "station,chainage,x,y,lon,lat,ground\n"...)
 	for _, r := range rows {
-		rec[0] = r.Station
-		rec[1] = fixed(u.Length(r.Chainage), 3)
-		rec[2] = fixed(r.X, 3)
-		rec[3] = fixed(r.Y, 3)
-		rec[4] = fixed(r.Lon, 8)
-		rec[5] = fixed(r.Lat, 8)
-		rec[6] = fixed(u.Length(r.Ground), 3)
-		if err := cw.Write(rec); err != nil {
-			return err
+		if strings.ContainsAny(r.Station, ",\"\n\r") {
+			return fmt.Errorf("station label %q cannot be written unquoted", r.Station)
+		}
+		b = append(b, r.Station...)
+		for _, f := range [...]struct {
+			v    float64
+			prec int
+		}{{u.Length(r.Chainage), 3}, {r.X, 3}, {r.Y, 3}, {r.Lon, 8}, {r.Lat, 8}, {u.Length(r.Ground), 3}} {
+			b = append(b, ',')
+			b = appendFixed(b, f.v, f.prec)
+		}
+		b = append(b, '\n')
+		if len(b) > 60*1024 {
+			if _, err := w.Write(b); err != nil {
+				return err
+			}
+			b = b[:0]
 		}
 	}
-	cw.Flush()
-	return cw.Error()
+	_, err := w.Write(b)
+	return err
 }
 
 // fixed formats v with prec decimals; NaN prints as an empty field so
 // spreadsheets read it as missing. Negative zero prints as zero.
-func fixed(v float64, prec int) string {
+func fixed(v float64, prec int) string { return string(appendFixed(nil, v, prec)) }
+
+// appendFixed appends fixed(v, prec) to b.
+func appendFixed(b []byte, v float64, prec int) []byte {
 	if math.IsNaN(v) {
-		return ""
+		return b
 	}
-	s := strconv.FormatFloat(v, 'f', prec, 64)
-	if v < 0 && strconv.FormatFloat(-v, 'f', prec, 64) == strconv.FormatFloat(0, 'f', prec, 64) {
-		s = s[1:]
+	n := len(b)
+	b = strconv.AppendFloat(b, v, 'f', prec, 64)
+	if b[n] == '-' && allZero(b[n+1:]) {
+		b = append(b[:n], b[n+1:]...)
 	}
-	return s
+	return b
+}
+
+// allZero reports whether digits holds only '0' and '.'.
+func allZero(digits []byte) bool {
+	for _, c := range digits {
+		if c != '0' && c != '.' {
+			return false
+		}
+	}
+	return true
 }

@@ -2,6 +2,7 @@ package main
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"io"
 	"path/filepath"
@@ -70,14 +71,17 @@ func writeGroundProfile(dir string, p profile, u report.Units) error {
 			X: s.X, Y: s.Y, Lon: s.Lon, Lat: s.Lat, Ground: p.ground[i],
 		}
 	}
-	if err := report.WriteFileAtomic(st.Path("ground.csv"), func(w io.Writer) error {
+	// The plot and the CSV are independent: write them side by side.
+	plotErr := make(chan error, 1)
+	go func() {
+		plotErr <- report.WriteGroundProfile(st.Path("ground.png"), report.GroundProfile{
+			Name: p.name, Chainage: p.chainages(), Ground: p.ground, Units: u,
+		})
+	}()
+	csvErr := report.WriteFileAtomic(st.Path("ground.csv"), func(w io.Writer) error {
 		return report.WriteGroundCSV(w, rows, u)
-	}); err != nil {
-		return err
-	}
-	if err := report.WriteGroundProfile(st.Path("ground.png"), report.GroundProfile{
-		Name: p.name, Chainage: p.chainages(), Ground: p.ground, Units: u,
-	}); err != nil {
+	})
+	if err := errors.Join(csvErr, <-plotErr); err != nil {
 		return err
 	}
 	return st.Commit()
