@@ -432,7 +432,6 @@ func (q *prepared) hydraulics(pl *Plan, drops []dropSpec, grades []int) {
 	if q.p.MinVelocity > 0 && t.MinVelocity < q.p.MinVelocity*(1-1e-9) {
 		pl.Warnings = append(pl.Warnings, fmt.Sprintf("velocity falls to %.3f m/s, below the non-silting %.3f m/s, in the backwater above a drop", t.MinVelocity, q.p.MinVelocity))
 	}
-	sort.Strings(pl.Warnings)
 }
 
 // depthForEnergy returns the subcritical depth (m) at which the canal at

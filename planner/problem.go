@@ -87,13 +87,13 @@ const (
 //	       + Waste·max(0, cut − fill/(1 − Shrinkage))   surplus, bank m³
 //	       + Borrow·max(0, fill − usable)              shortfall, compacted m³
 type Costs struct {
-	Cut          float64 // per m³ of excavation (bank measure)
-	Fill         float64 // per m³ of compacted fill placed
-	Shrinkage    float64 // fraction of cut volume lost when compacted into fill, in [0, 1)
-	Waste        float64 // per m³ (bank) of surplus cut hauled to spoil
-	Borrow       float64 // per m³ (compacted) of fill brought from borrow pits
-	DropFixed    float64 // per drop structure
-	DropPerMetre float64 // per metre of drop height
+	Cut          float64 `json:"cut"`            // per m³ of excavation (bank measure)
+	Fill         float64 `json:"fill"`           // per m³ of compacted fill placed
+	Shrinkage    float64 `json:"shrinkage"`      // fraction of cut volume lost when compacted into fill, in [0, 1)
+	Waste        float64 `json:"waste"`          // per m³ (bank) of surplus cut hauled to spoil
+	Borrow       float64 `json:"borrow"`         // per m³ (compacted) of fill brought from borrow pits
+	DropFixed    float64 `json:"drop_fixed"`     // per drop structure
+	DropPerMetre float64 `json:"drop_per_metre"` // per metre of drop height
 }
 
 // DefaultCosts returns the default unit prices: cut 4, fill 6, shrinkage

@@ -22,12 +22,12 @@ import (
 // The ground is taken as level across the section at the centre-line
 // elevation; DEM cross-sections are a later addition.
 type Template struct {
-	BedWidth     float64 // b, m
-	SideSlope    float64 // inner side slope z_i, H:V
-	BankHeight   float64 // top of bank above bed (water depth + freeboard), m; 0 in Problem.Template means depth + freeboard per grade
-	BankTopWidth float64 // bank top width W on each side, m
-	OuterSlope   float64 // outer (fill) slope of the banks z_o, H:V
-	CutSlope     float64 // cut slope above the top of bank z_c, H:V
+	BedWidth     float64 `json:"bed_width"`      // b, m
+	SideSlope    float64 `json:"side_slope"`     // inner side slope z_i, H:V
+	BankHeight   float64 `json:"bank_height"`    // top of bank above bed (water depth + freeboard), m; 0 in Problem.Template means depth + freeboard per grade
+	BankTopWidth float64 `json:"bank_top_width"` // bank top width W on each side, m
+	OuterSlope   float64 `json:"outer_slope"`    // outer (fill) slope of the banks z_o, H:V
+	CutSlope     float64 `json:"cut_slope"`      // cut slope above the top of bank z_c, H:V
 }
 
 // Default template parts (common practice, no source: a 3 m bank carries a
