@@ -69,6 +69,8 @@ func loadProfiles(g groundFlags, u report.Units) (groundSet, error) {
 	if g.alignment == "" {
 		return groundSet{}, usagef("--alignment is required: give the GeoJSON file with the canal alignment")
 	}
+	// Station positions default to round numbers of the unit system:
+	// every 10 m, or every 10 ft with --units us.
 	spacing, start := g.spacing*unitLength(u), g.startChainage*unitLength(u)
 	if !(spacing > 0) || math.IsInf(spacing, 0) {
 		return groundSet{}, usagef("--spacing must be a positive number of %s, got %v", u.LengthUnit(), g.spacing)

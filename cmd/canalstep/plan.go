@@ -60,7 +60,7 @@ func (f *planFlags) register(fs *flag.FlagSet) {
 	fs.Float64Var(&f.maxCut, "max-cut", planner.DefaultMaxCutDepth, "largest cut depth, ground minus invert")
 	fs.Float64Var(&f.maxFill, "max-fill", planner.DefaultMaxFillHeight, "largest fill height, invert minus ground")
 	fs.Float64Var(&f.minReach, "min-reach", planner.DefaultMinReach, "shortest canal reach between one drop's outlet transition and the next drop")
-	fs.Float64Var(&f.step, "step", 0.01, "elevation step of the optimiser's grid; the optimum is global on it")
+	fs.Float64Var(&f.step, "step", 0.01, "elevation step of the optimiser's grid, m (ft with --units us); drop heights must be whole steps; the optimum is global on it")
 	fs.StringVar(&f.volume, "volume", "average-end-area", "volumes between stations: average-end-area or prismoidal")
 	fs.Float64Var(&f.bankTopWidth, "bank-top-width", planner.DefaultBankTopWidth, "top width of each bank")
 	fs.Float64Var(&f.outerSlope, "outer-slope", planner.DefaultOuterSlope, "outer slope of the banks down to the ground (fill), H:V")
@@ -77,6 +77,12 @@ func (f *planFlags) register(fs *flag.FlagSet) {
 	fs.Float64Var(&f.costBorrow, "cost-borrow", def.Borrow, "price of fill brought from borrow per m³ (yd³)")
 	fs.Float64Var(&f.dropFixed, "cost-drop", def.DropFixed, "fixed price of one drop structure")
 	fs.Float64Var(&f.dropPerLen, "cost-drop-height", def.DropPerMetre, "price of a drop per m (per ft) of its height")
+	// Defaults of unit-bearing flags are SI; say so in the help.
+	for name, unit := range map[string]string{"max-cut": "m", "max-fill": "m", "min-reach": "m",
+		"bank-top-width": "m", "cost-cut": "per m³", "cost-fill": "per m³", "cost-waste": "per m³",
+		"cost-borrow": "per m³", "cost-drop-height": "per m"} {
+		fs.Lookup(name).DefValue += " " + unit
+	}
 	fs.StringVar(&f.design, "design", "", "TOML file of design values; its keys are these flags' names with _ for - (flags given on the command line win)")
 	fs.StringVar(&f.out, "out", "canalstep-out", "output folder; each alignment gets a sub-folder named after it")
 	fs.StringVar(&f.units, "units", "si", "units of values given and printed: si (m, m³/s) or us (ft, cfs)")
@@ -221,7 +227,16 @@ func (f *planFlags) buildSetup(fs *flag.FlagSet) (planSetup, error) {
 	if f.minVelocity > 0 && f.minVelocity >= f.maxVelocity {
 		return planSetup{}, usagef("--min-velocity %g must be below --max-velocity %g", f.minVelocity, f.maxVelocity)
 	}
-	L := unitLength(u)
+	L, V := unitLength(u), unitVolume(u)
+	// si converts a flag value given in the --units unit to SI (factor: SI
+	// per input unit). Defaults are SI values already: a flag left at its
+	// default keeps it, so --units us does not turn 5 m into 5 ft.
+	si := func(name string, v, factor float64) float64 {
+		if fs.Changed(name) {
+			return v * factor
+		}
+		return v
+	}
 	var vol planner.VolumeMethod
 	switch f.volume {
 	case "average-end-area", "aea":
@@ -241,13 +256,14 @@ func (f *planFlags) buildSetup(fs *flag.FlagSet) (planSetup, error) {
 		Roughness:   f.roughness,
 		MaxVelocity: f.maxVelocity * L,
 		MinVelocity: f.minVelocity * L,
-		MaxCutDepth: f.maxCut * L, MaxFillHeight: f.maxFill * L, MinReach: f.minReach * L,
+		MaxCutDepth: si("max-cut", f.maxCut, L), MaxFillHeight: si("max-fill", f.maxFill, L),
+		MinReach: si("min-reach", f.minReach, L),
 		Template: &planner.Template{BedWidth: f.bottomWidth * L, SideSlope: f.sideSlope,
-			BankTopWidth: f.bankTopWidth * L, OuterSlope: f.outerSlope, CutSlope: f.cutSlope},
+			BankTopWidth: si("bank-top-width", f.bankTopWidth, L), OuterSlope: f.outerSlope, CutSlope: f.cutSlope},
 		Costs: &planner.Costs{
-			Cut: f.costCut / unitVolume(u), Fill: f.costFill / unitVolume(u), Shrinkage: f.shrinkage,
-			Waste: f.costWaste / unitVolume(u), Borrow: f.costBorrow / unitVolume(u),
-			DropFixed: f.dropFixed, DropPerMetre: f.dropPerLen / L,
+			Cut: si("cost-cut", f.costCut, 1/V), Fill: si("cost-fill", f.costFill, 1/V), Shrinkage: f.shrinkage,
+			Waste: si("cost-waste", f.costWaste, 1/V), Borrow: si("cost-borrow", f.costBorrow, 1/V),
+			DropFixed: f.dropFixed, DropPerMetre: si("cost-drop-height", f.dropPerLen, 1/L),
 		},
 	}
 	if f.maxFill == 0 {
@@ -277,6 +293,7 @@ func (f *planFlags) buildSetup(fs *flag.FlagSet) (planSetup, error) {
 		return planSetup{}, err
 	}
 	s := planner.Settings{
+		// The step defaults to 0.01 of the unit system: 1 cm, or 0.01 ft.
 		Step: f.step * L, Volume: vol, CrestWidth: f.crestWidth * L,
 		TransitionLoss: f.transitionLoss, CheckFlows: checks,
 		Freeboard: hydraulics.FreeboardRule{Fixed: f.freeboard * L},

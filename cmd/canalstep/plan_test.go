@@ -5,6 +5,7 @@ import (
 	"context"
 	"encoding/json"
 	"fmt"
+	"io"
 	"math"
 	"os"
 	"path/filepath"
@@ -252,5 +253,34 @@ func TestPlanUSUnits(t *testing.T) {
 	rows := readCSV(t, filepath.Join(dir, "us", "East_Branch", "stations.csv"))
 	if last := rows[len(rows)-1][0]; !strings.Contains(last, "+") || len(strings.Split(last, "+")[1]) != 5 {
 		t.Errorf("US station label %q is not a 100-ft station like 119+59.09", last)
+	}
+}
+
+// TestUSDefaultsStaySI checks that with --units us a flag left at its
+// default keeps its SI value (5 m of cut is not read as 5 ft), while a value
+// given is read in feet (1 ft = 0.3048 m, 1 yd³ = 0.764554857984 m³, exact
+// by definition).
+func TestUSDefaultsStaySI(t *testing.T) {
+	base := []string{"--units", "us", "--flow", "100", "--bottom-width", "6", "--side-slope", "1.5", "--roughness", "0.025", "--max-velocity", "3"}
+	for _, c := range []struct {
+		extra            []string
+		wantCut, wantFee float64 // max cut depth, m; cut price per m³
+	}{
+		{nil, 5, 4},
+		{[]string{"--max-cut", "10", "--cost-cut", "3"}, 3.048, 3 / report.CubicYardM3},
+	} {
+		fs := newFlagSet("plan", io.Discard)
+		var f planFlags
+		f.register(fs)
+		setup, ok, err := f.parse(fs, append(append([]string{}, base...), c.extra...))
+		if !ok || err != nil {
+			t.Fatalf("parse %v: %v", c.extra, err)
+		}
+		if got := setup.problem.MaxCutDepth; math.Abs(got-c.wantCut) > 1e-12 {
+			t.Errorf("%v: max cut %.6f m, want %.6f m", c.extra, got, c.wantCut)
+		}
+		if got := setup.problem.Costs.Cut; math.Abs(got-c.wantFee) > 1e-12 {
+			t.Errorf("%v: cut price %.6f per m³, want %.6f", c.extra, got, c.wantFee)
+		}
 	}
 }

@@ -102,7 +102,14 @@ func exitCode(err error) int {
 	return 1
 }
 
-// oneLine folds an error message onto a single line.
+// oneLine folds an error message onto a single line; the lines of joined
+// errors (one per failed alignment) are separated by "; ".
 func oneLine(err error) string {
-	return strings.Join(strings.Fields(err.Error()), " ")
+	var parts []string
+	for _, l := range strings.Split(err.Error(), "\n") {
+		if f := strings.Fields(l); len(f) > 0 {
+			parts = append(parts, strings.Join(f, " "))
+		}
+	}
+	return strings.Join(parts, "; ")
 }
