@@ -8,6 +8,7 @@ import (
 	"math"
 	"path/filepath"
 	"runtime"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -468,7 +469,7 @@ func printPlanSummary(w io.Writer, p profile, r *planner.Result, u report.Units,
 	if b := r.Baseline; b != nil {
 		bt := b.Totals
 		fmt.Fprintf(w, "  even spacing: %3d drops, cut %10.0f %s, fill %10.0f %s, total cost %12.0f%s\n",
-			bt.DropCount, u.Volume(bt.CutVolume), vu, u.Volume(bt.FillVolume), vu, bt.TotalCost, feasibleNote(b))
+			bt.DropCount, u.Volume(bt.CutVolume), vu, u.Volume(bt.FillVolume), vu, bt.TotalCost, feasibleNote(b, u))
 		if bt.TotalCost > 0 {
 			fmt.Fprintf(w, "  saving against even spacing: %.0f (%.1f %%)\n", bt.TotalCost-t.TotalCost, 100*(bt.TotalCost-t.TotalCost)/bt.TotalCost)
 		}
@@ -506,11 +507,26 @@ func listOf(items []string, max int) string {
 	return fmt.Sprintf("%s and %d more", strings.Join(items[:max], ", "), len(items)-max)
 }
 
-func feasibleNote(b *planner.Baseline) string {
+func feasibleNote(b *planner.Baseline, u report.Units) string {
 	if b.Feasible {
 		return ""
 	}
-	return " (breaks: " + strings.Join(b.Violations, "; ") + ")"
+	if u == report.SI {
+		return " (breaks: " + strings.Join(b.Violations, "; ") + ")"
+	}
+	// The planner words its violations in SI; in US units name only the
+	// constraints here and leave the SI detail to summary.json.
+	var kinds []string
+	for _, v := range b.Violations {
+		k := v
+		if i := strings.IndexAny(v, "0123456789-"); i > 0 {
+			k = strings.TrimSpace(v[:i])
+		}
+		if !slices.Contains(kinds, k) {
+			kinds = append(kinds, k)
+		}
+	}
+	return " (breaks: " + strings.Join(kinds, "; ") + "; details in summary.json)"
 }
 
 // parseAlternatives reads --alternatives: drop-height sets separated by
