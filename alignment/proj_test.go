@@ -14,7 +14,7 @@ import (
 
 	"github.com/paulmach/orb"
 
-	"canalstep/internal/reftool"
+	"canalstep/testdata/reftool"
 )
 
 // cs2cs is a Transformer that runs PROJ's cs2cs from src to dst (both

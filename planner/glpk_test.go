@@ -14,7 +14,7 @@ import (
 	"testing"
 	"time"
 
-	"canalstep/internal/reftool"
+	"canalstep/testdata/reftool"
 	"canalstep/planner/hydraulics"
 )
 

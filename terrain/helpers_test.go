@@ -10,7 +10,7 @@ import (
 	"strings"
 	"testing"
 
-	"canalstep/internal/reftool"
+	"canalstep/testdata/reftool"
 	"canalstep/terrain"
 )
 

@@ -11,7 +11,7 @@ import (
 	"testing"
 	"unsafe"
 
-	"canalstep/internal/reftool"
+	"canalstep/testdata/reftool"
 	"canalstep/terrain"
 )
 

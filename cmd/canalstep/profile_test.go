@@ -13,7 +13,7 @@ import (
 	"strings"
 	"testing"
 
-	"canalstep/internal/reftool"
+	"canalstep/testdata/reftool"
 	"canalstep/terrain"
 )
 
