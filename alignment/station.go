@@ -26,9 +26,85 @@ type Station struct {
 	// At a vertex it is the direction of the segment leaving it (entering
 	// it, for the last vertex).
 	Azimuth float64
+	// CrossAzimuth is the direction of the station's cross-section line,
+	// pointing to the right of the direction of travel, in radians
+	// clockwise from the work CRS's grid north: Azimuth + π/2 on a
+	// straight, the bisector of the angle between the two segments at an
+	// interior vertex.
+	CrossAzimuth float64
 	// Vertex is true when the station is a vertex of the alignment
 	// (including the first and the last point).
 	Vertex bool
+
+	// Label is the station label in the run's notation (FormatStation):
+	// set by the corridor stage, empty from StationLine.
+	Label string
+	// Ground is the centre-line ground elevation in metres; set by the
+	// corridor stage when the DEM is sampled (zero before).
+	Ground float64
+	// Cross is the ground across the line at the station; nil when the
+	// ground is taken as level across the section.
+	Cross *CrossSection
+}
+
+// CrossSection is the ground across the alignment at one station, sampled
+// along the line through the station in the direction Station.CrossAzimuth.
+type CrossSection struct {
+	// Offsets are distances in metres from the centre line, negative to
+	// the left looking downstream, strictly increasing.
+	Offsets []float64
+	// Levels are the ground elevations (m) at Offsets.
+	Levels []float64
+	// Widened is true when the first sampled width did not hold both catch
+	// points and the section was sampled again twice as wide.
+	Widened bool
+}
+
+// Profile is one alignment stationed and sampled: the value that flows from
+// the corridor stage through the planner to every writer.
+type Profile struct {
+	// Name is the alignment's name as in the file; Folder its output
+	// folder name (SafeName).
+	Name, Folder string
+	// Alignment is the source feature: its line, CRS and properties.
+	Alignment Alignment
+	// Stations are in chainage order, with Ground (and Cross, when DEM
+	// cross-sections are used) filled.
+	Stations []Station
+	// WorkCRS is the projected CRS chainage is measured in, as a
+	// definition PROJ reads (the DEM's CRS, or a local transverse Mercator
+	// when the DEM is geographic); WorkUnitToMetre is its unit in metres.
+	WorkCRS         string
+	WorkUnitToMetre float64
+}
+
+// Chainages returns the stations' chainages in metres.
+func (p *Profile) Chainages() []float64 {
+	out := make([]float64, len(p.Stations))
+	for i, s := range p.Stations {
+		out[i] = s.Chainage
+	}
+	return out
+}
+
+// Grounds returns the stations' centre-line ground elevations in metres.
+func (p *Profile) Grounds() []float64 {
+	out := make([]float64, len(p.Stations))
+	for i, s := range p.Stations {
+		out[i] = s.Ground
+	}
+	return out
+}
+
+// CrossPoint returns the point offset metres to the right of the station
+// (negative: left) along its cross-section line, in the work CRS, whose unit
+// is unitToMetre metres (0 means 1).
+func (s Station) CrossPoint(offset, unitToMetre float64) (x, y float64) {
+	if unitToMetre == 0 {
+		unitToMetre = 1
+	}
+	d := offset / unitToMetre
+	return s.WorkX + d*math.Sin(s.CrossAzimuth), s.WorkY + d*math.Cos(s.CrossAzimuth)
 }
 
 // Transformer converts coordinates from one CRS to another, in place. x is
@@ -194,8 +270,13 @@ func StationLine(line orb.LineString, unitToMetre, spacing, start float64) ([]St
 	}
 	vertex := func(i int) Station {
 		p := pts[i]
+		a := az[min(i, len(az)-1)]
+		cross := a + math.Pi/2
+		if i > 0 && i < len(az) {
+			cross = bisector(az[i-1], a)
+		}
 		return Station{Chainage: start + dist[i], X: p[0], Y: p[1], WorkX: p[0], WorkY: p[1],
-			Azimuth: az[min(i, len(az)-1)], Vertex: true}
+			Azimuth: a, CrossAzimuth: cross, Vertex: true}
 	}
 
 	emit(vertex(0), false)
@@ -212,7 +293,7 @@ func StationLine(line orb.LineString, unitToMetre, spacing, start float64) ([]St
 		a, b := pts[seg-1], pts[seg]
 		t := (d - dist[seg-1]) / (dist[seg] - dist[seg-1])
 		x, y := a[0]+t*(b[0]-a[0]), a[1]+t*(b[1]-a[1])
-		emit(Station{Chainage: start + d, X: x, Y: y, WorkX: x, WorkY: y, Azimuth: az[seg-1]}, false)
+		emit(Station{Chainage: start + d, X: x, Y: y, WorkX: x, WorkY: y, Azimuth: az[seg-1], CrossAzimuth: az[seg-1] + math.Pi/2}, false)
 	}
 	for ; seg < len(pts); seg++ {
 		emit(vertex(seg), seg == len(pts)-1)
@@ -226,6 +307,14 @@ func StationLine(line orb.LineString, unitToMetre, spacing, start float64) ([]St
 // azimuth is the grid bearing of a→b in radians clockwise from north.
 func azimuth(a, b orb.Point) float64 {
 	return math.Atan2(b[0]-a[0], b[1]-a[1])
+}
+
+// bisector returns the direction (radians clockwise from north) that halves
+// the angle between the incoming segment's normal and the outgoing one's,
+// pointing right of travel: the cross-section direction at a vertex.
+func bisector(in, out float64) float64 {
+	d := math.Remainder(out-in, 2*math.Pi) // turn at the vertex, in (−π, π]
+	return in + d/2 + math.Pi/2
 }
 
 // Stations stations alignment a: it transforms the line to the work CRS
