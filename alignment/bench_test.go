@@ -56,3 +56,51 @@ func BenchmarkFormatStation(b *testing.B) {
 		_ = FormatStation(float64(i)*0.37, false)
 	}
 }
+
+// curveRadius for the benchmark zigzag: its legs deflect 73.7° (twice
+// atan(1200/1600)), so R = 500 m takes T = 375 m of each 2 km leg.
+const curveRadius = 500
+
+// BenchmarkFitCurves fits the 49 curves of the 100 km zigzag.
+func BenchmarkFitCurves(b *testing.B) {
+	line := hundredKm()
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, err := FitCurves(line, 1, curveRadius); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// BenchmarkStationRoute stations the curved 100 km zigzag at 1 m: about a
+// third of the stations lie on arcs (49 arcs of 643.5 m; common practice
+// for comparing with BenchmarkStationLine, no source).
+func BenchmarkStationRoute(b *testing.B) {
+	r, err := FitCurves(hundredKm(), 1, curveRadius)
+	if err != nil {
+		b.Fatal(err)
+	}
+	b.ReportAllocs()
+	var n int
+	for b.Loop() {
+		st, err := StationRoute(r, 1, 0)
+		if err != nil {
+			b.Fatal(err)
+		}
+		n = len(st)
+	}
+	b.ReportMetric(float64(n), "stations")
+}
+
+// BenchmarkLocate finds one offtake on the curved 100 km zigzag (99
+// elements).
+func BenchmarkLocate(b *testing.B) {
+	r, err := FitCurves(hundredKm(), 1, curveRadius)
+	if err != nil {
+		b.Fatal(err)
+	}
+	b.ReportAllocs()
+	for b.Loop() {
+		r.Locate(430000, 4000900)
+	}
+}

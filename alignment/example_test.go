@@ -2,6 +2,8 @@ package alignment_test
 
 import (
 	"fmt"
+	"math"
+	"strings"
 
 	"canalstep/alignment"
 
@@ -109,4 +111,57 @@ func ExampleSafeName() {
 	fmt.Println(alignment.SafeName("Lateral 3/B (upper)"), alignment.SafeName("../secret"), alignment.SafeName(".."))
 	// Output:
 	// Lateral_3_B_upper secret alignment
+}
+
+// Fit a 200 m curve at the corner of an alignment that runs 1000 m east,
+// then 1000 m north, and print the curve table: a 90° turn to the left
+// takes T = 200 m of each tangent.
+func ExampleFitCurves() {
+	line := orb.LineString{{500000, 4000000}, {501000, 4000000}, {501000, 4001000}}
+	route, err := alignment.FitCurves(line, 1, 200)
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	for _, c := range route.Curves {
+		fmt.Printf("%s: Δ %.2f° %s, R %.2f m, T %.2f m, L %.2f m, E %.2f m, M %.2f m\n",
+			c.At, math.Abs(c.DeflectionDegrees()), c.Side(), c.Radius, c.Tangent, c.Length, c.External, c.MidOrdinate)
+		fmt.Printf("  PC %s (E %.2f N %.2f)  PT %s (E %.2f N %.2f)  centre E %.2f N %.2f\n",
+			alignment.FormatStation(c.PCDistance, false), c.PC[0], c.PC[1],
+			alignment.FormatStation(c.PTDistance, false), c.PT[0], c.PT[1], c.Centre[0], c.Centre[1])
+	}
+	fmt.Printf("route %.2f m, polyline %.2f m\n", route.Length, alignment.Length(line, 1))
+	_, err = alignment.FitCurves(line, 1, 1200)
+	fmt.Println(err)
+	// Output:
+	// vertex 2: Δ 90.00° left, R 200.00 m, T 200.00 m, L 314.16 m, E 82.84 m, M 58.58 m
+	//   PC 0+800.00 (E 500800.00 N 4000000.00)  PT 1+114.16 (E 501000.00 N 4000200.00)  centre E 500800.00 N 4000200.00
+	// route 1914.16 m, polyline 2000.00 m
+	// vertex 2: a curve of radius 1200.00 m turning 90.00° left needs tangents of 1200.00 m, more than the 1000.00 m to the start of the line (vertex 1); a radius of at most 1000.00 m fits there, at most 1000.00 m at every vertex
+}
+
+// Station the curved route every 100 m: the PC and PT stand in for the
+// corner vertex, and stations on the arc face the tangent. (Checked by
+// hand: 1+000.00 is 200 m, 1 rad, into the arc, at centre + 200 m ·
+// (sin(π − 1), cos(π − 1)), facing 90° − 57.30°.)
+func ExampleStationRoute() {
+	line := orb.LineString{{500000, 4000000}, {501000, 4000000}, {501000, 4001000}}
+	route, _ := alignment.FitCurves(line, 1, 200)
+	stations, err := alignment.StationRoute(route, 100, 0)
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	for _, s := range stations[7:14] {
+		fmt.Println(strings.TrimSpace(fmt.Sprintf("%s  E %.2f  N %.2f  azimuth %6.2f° %s", alignment.FormatStation(s.Chainage, false),
+			s.X, s.Y, s.Azimuth*180/math.Pi, s.Mark)))
+	}
+	// Output:
+	// 0+700.00  E 500700.00  N 4000000.00  azimuth  90.00°
+	// 0+800.00  E 500800.00  N 4000000.00  azimuth  90.00° PC
+	// 0+900.00  E 500895.89  N 4000024.48  azimuth  61.35°
+	// 1+000.00  E 500968.29  N 4000091.94  azimuth  32.70°
+	// 1+100.00  E 500999.50  N 4000185.85  azimuth   4.06°
+	// 1+114.16  E 501000.00  N 4000200.00  azimuth   0.00° PT
+	// 1+200.00  E 501000.00  N 4000285.84  azimuth   0.00°
 }

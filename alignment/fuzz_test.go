@@ -30,30 +30,119 @@ func FuzzRead(f *testing.F) {
 	f.Fuzz(func(t *testing.T, data []byte) {
 		as, err := Read(data)
 		if err != nil {
-			known := false
-			for _, s := range sentinels {
-				known = known || errors.Is(err, s)
-			}
-			if !known || strings.Contains(err.Error(), "\n") {
-				t.Fatalf("Read error %q: not one line wrapping a sentinel", err)
-			}
+			checkError(t, err, sentinels...)
 			return
 		}
-		keys := map[string]bool{}
-		for i, a := range as {
-			if len(a.Line) < 2 || a.Index != i || a.Name == "" {
-				t.Fatalf("alignment %d: %+v", i, a)
+		checkAlignments(t, as)
+	})
+}
+
+// checkError fails unless err is one line and wraps one of sentinels.
+func checkError(t *testing.T, err error, sentinels ...error) {
+	t.Helper()
+	known := false
+	for _, s := range sentinels {
+		known = known || errors.Is(err, s)
+	}
+	if !known || strings.Contains(err.Error(), "\n") {
+		t.Fatalf("error %q: not one line wrapping a sentinel", err)
+	}
+}
+
+// checkAlignments checks what Read and ReadScheme promise of every
+// alignment they return.
+func checkAlignments(t *testing.T, as []Alignment) {
+	t.Helper()
+	keys := map[string]bool{}
+	for i, a := range as {
+		if len(a.Line) < 2 || a.Index != i || a.Name == "" || len(a.Positions) != len(a.Line) {
+			t.Fatalf("alignment %d: %+v", i, a)
+		}
+		for j := 1; j < len(a.Line); j++ {
+			if a.Line[j] == a.Line[j-1] {
+				t.Fatalf("alignment %q: repeated vertex %d", a.Name, j)
 			}
-			for j := 1; j < len(a.Line); j++ {
-				if a.Line[j] == a.Line[j-1] {
-					t.Fatalf("alignment %q: repeated vertex %d", a.Name, j)
+			if p, q := a.Positions[j-1], a.Positions[j]; q.Part < p.Part || (q.Part == p.Part && q.Index <= p.Index) {
+				t.Fatalf("alignment %q: positions %v then %v", a.Name, p, q)
+			}
+		}
+		k := nameKey(a.Name)
+		if keys[k] {
+			t.Fatalf("alignment %q: folder name %q used twice", a.Name, k)
+		}
+		keys[k] = true
+	}
+}
+
+// FuzzRoute: FitCurves and StationRoute never panic; a route is no longer
+// than its polyline, shorter by Σ(2T − L); its stations keep StationLine's
+// invariants, lie on the route (Locate finds them there) and, on an arc,
+// R from the centre.
+func FuzzRoute(f *testing.F) {
+	f.Add(0.0, 0.0, 1000.0, 0.0, 1000.0, 1000.0, 2000.0, 1000.0, 1.0, 200.0, 20.0, 0.0)
+	f.Add(0.0, 0.0, 1000.0, 0.0, 1000.0, 400.0, 2000.0, 400.0, 1.0, 200.0, 20.0, 100.0)
+	f.Add(500000.0, 4e6, 500100.0, 4e6, 500050.0, 4e6, 500050.0, 4e6+80, 0.3048, 10.0, 3.0, -50.0)
+	f.Add(0.0, 0.0, 1.0, 1e-9, 2.0, 0.0, 3.0, 1e-9, 1.0, 1e6, 0.1, 0.0)
+	f.Add(0.0, 0.0, 0.0, 0.0, 1.0, 1.0, 1.0, 1.0, 0.0, 1e308, 0.5, 1e9)
+	f.Add(1e300, 1e300, -1e300, -1e300, 0.0, 0.0, 1.0, 5.0, 1.0, 1e-300, 1e299, 0.0)
+	f.Fuzz(func(t *testing.T, x0, y0, x1, y1, x2, y2, x3, y3, unit, radius, spacing, start float64) {
+		line := orb.LineString{{x0, y0}, {x1, y1}, {x2, y2}, {x3, y3}}
+		r, err := FitCurves(line, unit, radius)
+		if err != nil {
+			checkError(t, err, ErrUnit, ErrRadius, ErrGeometry, ErrCurveFit)
+			return
+		}
+		u := r.UnitToMetre
+		poly := Length(line, u)
+		saved, scale := 0.0, 0.0
+		for _, p := range line {
+			scale = max(scale, math.Abs(p[0]), math.Abs(p[1]))
+		}
+		for _, c := range r.Curves {
+			if !(c.Tangent > 0) || !(c.Length > 0) || !(c.PTDistance > c.PCDistance) || c.External < minExternal {
+				t.Fatalf("curve %+v", c)
+			}
+			saved += 2*c.Tangent - c.Length
+		}
+		// Rounding: the coordinates carry about 1e-16 of the line's extent
+		// each; allow 1e-12 of it per vertex, and 1e-9 of the polyline for
+		// tangents that meet (meetTolerance).
+		tol := (1e-9*poly + 1e-12*scale*u) * 4
+		if !(r.Length <= poly+tol) || math.Abs(poly-saved-r.Length) > tol {
+			t.Fatalf("route %v m, polyline %v m, Σ(2T − L) %v m (tol %g)", r.Length, poly, saved, tol)
+		}
+		if !(spacing > 0) || r.Length/spacing > 2e5 {
+			t.Skip("too many stations for a fuzz iteration")
+		}
+		st, err := StationRoute(r, spacing, start)
+		if err != nil {
+			for _, s := range []error{ErrSpacing, ErrStart, ErrGeometry, ErrTooManyStations} {
+				if errors.Is(err, s) {
+					return
 				}
 			}
-			k := nameKey(a.Name)
-			if keys[k] {
-				t.Fatalf("alignment %q: folder name %q used twice", a.Name, k)
+			t.Fatalf("StationRoute error %v", err)
+		}
+		if st[0].Chainage != start || st[0].Mark&MarkStart == 0 || st[len(st)-1].Chainage != start+r.Length || st[len(st)-1].Mark&MarkEnd == 0 {
+			t.Fatalf("first %+v, last %+v; want the start at %v and the end at %v", st[0], st[len(st)-1], start, start+r.Length)
+		}
+		for i, s := range st {
+			if i > 0 && !(s.Chainage > st[i-1].Chainage) {
+				t.Fatalf("chainage not increasing at %d: %v then %v", i, st[i-1].Chainage, s.Chainage)
 			}
-			keys[k] = true
+			if s.Vertex != (s.Mark != 0) {
+				t.Fatalf("station %d: vertex %v, mark %q", i, s.Vertex, s.Mark)
+			}
+			if _, off := r.Locate(s.WorkX, s.WorkY); !(math.Abs(off) <= tol) {
+				t.Fatalf("station %d %+v lies %v m off the route (tol %g)", i, s, off, tol)
+			}
+			if s.Curve != 0 {
+				c := r.Curves[s.Curve-1]
+				d := math.Hypot(s.WorkX-c.Centre[0], s.WorkY-c.Centre[1]) * u
+				if math.Abs(d-c.Radius) > 1e-9*c.Radius+tol {
+					t.Fatalf("station %d on curve %d lies %v m from its centre, radius %v m", i, s.Curve, d, c.Radius)
+				}
+			}
 		}
 	})
 }

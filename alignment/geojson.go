@@ -33,6 +33,36 @@ type Alignment struct {
 	CRS string
 	// Properties are the feature's properties (nil for a bare geometry).
 	Properties map[string]any
+	// Positions[i] is where Line[i] stands in the file (nil for an
+	// Alignment not read from a file); see VertexName.
+	Positions []Position
+}
+
+// Position is where a vertex of an alignment stands in its file.
+type Position struct {
+	// Part is the 1-based part of a MultiLineString; 0 for a LineString.
+	Part int
+	// Index is the 1-based position of the vertex in its LineString or
+	// part. Where parts join, the joint is the end of the earlier part.
+	Index int
+}
+
+// String names the position for people: "vertex 4", or "vertex 2 of part
+// 3" in a MultiLineString.
+func (p Position) String() string {
+	if p.Part > 0 {
+		return fmt.Sprintf("vertex %d of part %d", p.Index, p.Part)
+	}
+	return vertexName(p.Index)
+}
+
+// VertexName names a.Line[i] for messages as it stands in the file
+// (Positions), or "vertex i+1" when the positions are not known.
+func (a Alignment) VertexName(i int) string {
+	if i >= 0 && i < len(a.Positions) && len(a.Positions) == len(a.Line) {
+		return a.Positions[i].String()
+	}
+	return vertexName(i + 1)
 }
 
 // Errors returned by Read, wrapped with detail; test them with errors.Is.
@@ -87,72 +117,127 @@ type object struct {
 // Duplicate names get a suffix -2, -3, ... in file order, so that each
 // alignment's SafeName is unique even on a case-insensitive file system.
 func Read(data []byte) ([]Alignment, error) {
+	var out []Alignment
+	crs, err := walk(data, func(f rawFeature) error {
+		var props map[string]any
+		if len(f.props) > 0 {
+			if err := json.Unmarshal(f.props, &props); err != nil {
+				return fmt.Errorf("%w: feature %d: \"properties\" must be an object or null", ErrNotGeoJSON, f.n)
+			}
+		}
+		g, _, err := f.geometryObject()
+		if err != nil {
+			return err
+		}
+		line, pos, ok, err := readGeometry(g, f.what(propName(props)))
+		if ok {
+			out = append(out, Alignment{Name: propName(props), Feature: f.n, Line: line, Properties: props, Positions: pos})
+		}
+		return err
+	})
+	if err != nil {
+		return nil, err
+	}
+	return finish(out, crs)
+}
+
+// rawFeature is one object of a GeoJSON file that may hold an alignment:
+// a Feature, or the file's lone bare geometry.
+type rawFeature struct {
+	n               int // 1-based position in the collection; 1 for a lone object
+	props, geometry json.RawMessage
+	bare            *object // the geometry itself, for a bare geometry
+}
+
+// what names the feature in messages: "feature 3 (\"East Branch\")",
+// "feature 3", or "" for a bare geometry.
+func (f rawFeature) what(name string) string {
+	switch {
+	case f.bare != nil:
+		return ""
+	case name != "":
+		return fmt.Sprintf("feature %d (%q)", f.n, name)
+	}
+	return fmt.Sprintf("feature %d", f.n)
+}
+
+// geometryObject decodes the feature's geometry; present is false when it
+// is null or missing.
+func (f rawFeature) geometryObject() (g object, present bool, err error) {
+	if f.bare != nil {
+		return *f.bare, true, nil
+	}
+	if len(f.geometry) == 0 || string(f.geometry) == "null" {
+		return g, false, nil
+	}
+	if err := json.Unmarshal(f.geometry, &g); err != nil {
+		return g, false, fmt.Errorf("%w: feature %d: \"geometry\" must be an object or null", ErrNotGeoJSON, f.n)
+	}
+	return g, true, nil
+}
+
+// walk checks that data is a GeoJSON object and calls each for every
+// Feature of a FeatureCollection, for a lone Feature, or for a lone line
+// geometry, in file order, stopping at the first error. It returns the
+// file's legacy CRS (see Alignment.CRS).
+func walk(data []byte, each func(rawFeature) error) (string, error) {
 	// RFC 8259 §8.1 lets a parser ignore a byte order mark; some Windows
 	// tools write one.
 	data = bytes.TrimPrefix(data, []byte("\xef\xbb\xbf"))
 	if len(bytes.TrimSpace(data)) == 0 {
-		return nil, fmt.Errorf("%w: the file is empty", ErrNotJSON)
+		return "", fmt.Errorf("%w: the file is empty", ErrNotJSON)
 	}
 	if !json.Valid(data) {
-		return nil, notJSON(data)
+		return "", notJSON(data)
 	}
 	if t := bytes.TrimLeft(data, " \t\r\n"); len(t) == 0 || t[0] != '{' {
-		return nil, fmt.Errorf("%w: the top level must be an object with a \"type\" member", ErrNotGeoJSON)
+		return "", fmt.Errorf("%w: the top level must be an object with a \"type\" member", ErrNotGeoJSON)
 	}
 	var top object
 	if err := json.Unmarshal(data, &top); err != nil {
-		return nil, fmt.Errorf("%w: %s", ErrNotGeoJSON, describe(err))
+		return "", fmt.Errorf("%w: %s", ErrNotGeoJSON, describe(err))
 	}
 	crs, err := legacyCRS(top.CRS)
 	if err != nil {
-		return nil, err
-	}
-
-	var out []Alignment
-	add := func(feature int, name string, props map[string]any, line orb.LineString) {
-		out = append(out, Alignment{Name: name, Index: len(out), Feature: feature, Line: line, CRS: crs, Properties: props})
+		return "", err
 	}
 	switch top.Type {
 	case "FeatureCollection":
 		for i, raw := range top.Features {
 			var f object
 			if err := json.Unmarshal(raw, &f); err != nil {
-				return nil, fmt.Errorf("%w: feature %d: %s", ErrNotGeoJSON, i+1, describe(err))
+				return "", fmt.Errorf("%w: feature %d: %s", ErrNotGeoJSON, i+1, describe(err))
 			}
-			props, line, ok, err := readFeature(f, i+1)
-			if err != nil {
-				return nil, err
-			}
-			if ok {
-				add(i+1, propName(props), props, line)
+			if err := each(rawFeature{n: i + 1, props: f.Properties, geometry: f.Geometry}); err != nil {
+				return "", err
 			}
 		}
 	case "Feature":
-		props, line, ok, err := readFeature(top, 1)
-		if err != nil {
-			return nil, err
-		}
-		if ok {
-			add(1, propName(props), props, line)
+		if err := each(rawFeature{n: 1, props: top.Properties, geometry: top.Geometry}); err != nil {
+			return "", err
 		}
 	case "LineString", "MultiLineString":
-		line, ok, err := readGeometry(top, "")
-		if err != nil {
-			return nil, err
-		}
-		if ok {
-			add(1, "", nil, line)
+		if err := each(rawFeature{n: 1, bare: &top}); err != nil {
+			return "", err
 		}
 	case "Point", "MultiPoint", "Polygon", "MultiPolygon":
 	case "GeometryCollection":
-		return nil, fmt.Errorf("%w (a GeometryCollection is not read: put each alignment in its own Feature)", ErrNoLine)
+		return "", fmt.Errorf("%w (a GeometryCollection is not read: put each alignment in its own Feature)", ErrNoLine)
 	default:
-		return nil, fmt.Errorf("%w: \"type\" is %q; want FeatureCollection, Feature, LineString or MultiLineString", ErrNotGeoJSON, top.Type)
+		return "", fmt.Errorf("%w: \"type\" is %q; want FeatureCollection, Feature, LineString or MultiLineString", ErrNotGeoJSON, top.Type)
 	}
+	return crs, nil
+}
+
+// finish numbers and names the alignments read from a file whose legacy
+// CRS is crs: default names, unique folder names, at least one line of two
+// points.
+func finish(out []Alignment, crs string) ([]Alignment, error) {
 	if len(out) == 0 {
 		return nil, ErrNoLine
 	}
 	for i := range out {
+		out[i].Index, out[i].CRS = i, crs
 		if out[i].Name == "" {
 			out[i].Name = "alignment-" + strconv.Itoa(i+1)
 		}
@@ -196,38 +281,16 @@ func describe(err error) string {
 	return err.Error()
 }
 
-// readFeature returns a Feature's properties and its line; ok is false
-// when the feature has no line geometry.
-func readFeature(f object, n int) (props map[string]any, line orb.LineString, ok bool, err error) {
-	if len(f.Properties) > 0 {
-		if err := json.Unmarshal(f.Properties, &props); err != nil {
-			return nil, nil, false, fmt.Errorf("%w: feature %d: \"properties\" must be an object or null", ErrNotGeoJSON, n)
-		}
-	}
-	if len(f.Geometry) == 0 || string(f.Geometry) == "null" {
-		return props, nil, false, nil
-	}
-	var g object
-	if err := json.Unmarshal(f.Geometry, &g); err != nil {
-		return nil, nil, false, fmt.Errorf("%w: feature %d: \"geometry\" must be an object or null", ErrNotGeoJSON, n)
-	}
-	what := fmt.Sprintf("feature %d", n)
-	if name := propName(props); name != "" {
-		what = fmt.Sprintf("feature %d (%q)", n, name)
-	}
-	line, ok, err = readGeometry(g, what)
-	return props, line, ok, err
-}
-
 // propName returns the "name" property when it is a non-blank string.
 func propName(props map[string]any) string {
 	s, _ := props["name"].(string)
 	return strings.TrimSpace(s)
 }
 
-// readGeometry decodes a LineString or MultiLineString geometry object;
-// ok is false for other geometry types. what names the geometry in errors.
-func readGeometry(g object, what string) (orb.LineString, bool, error) {
+// readGeometry decodes a LineString or MultiLineString geometry object
+// and where each of its kept vertices stands in the file; ok is false for
+// other geometry types. what names the geometry in errors.
+func readGeometry(g object, what string) (orb.LineString, []Position, bool, error) {
 	fail := func(err error) error {
 		if what != "" {
 			return fmt.Errorf("%w: %s: %v", ErrNotGeoJSON, what, err)
@@ -238,36 +301,44 @@ func readGeometry(g object, what string) (orb.LineString, bool, error) {
 	case "LineString":
 		var pos [][]float64
 		if err := unmarshalCoords(g.Coordinates, &pos); err != nil {
-			return nil, false, fail(err)
+			return nil, nil, false, fail(err)
 		}
-		line, err := positions(pos)
+		line, err := positions(pos, 0)
 		if err != nil {
-			return nil, false, fail(err)
+			return nil, nil, false, fail(err)
 		}
-		return dropRepeats(line), true, nil
+		line.drop()
+		return line.pts, line.pos, true, nil
 	case "MultiLineString":
 		var parts [][][]float64
 		if err := unmarshalCoords(g.Coordinates, &parts); err != nil {
-			return nil, false, fail(err)
+			return nil, nil, false, fail(err)
 		}
-		lines := make([]orb.LineString, 0, len(parts))
+		lines := make([]placed, 0, len(parts))
 		for i, p := range parts {
-			line, err := positions(p)
+			line, err := positions(p, i+1)
 			if err != nil {
-				return nil, false, fail(fmt.Errorf("part %d: %v", i+1, err))
+				return nil, nil, false, fail(fmt.Errorf("part %d: %v", i+1, err))
 			}
 			lines = append(lines, line)
 		}
 		line, err := joinParts(lines)
 		if err != nil {
 			if what != "" {
-				return nil, false, fmt.Errorf("%s: %w", what, err)
+				return nil, nil, false, fmt.Errorf("%s: %w", what, err)
 			}
-			return nil, false, err
+			return nil, nil, false, err
 		}
-		return dropRepeats(line), true, nil
+		line.drop()
+		return line.pts, line.pos, true, nil
 	}
-	return nil, false, nil
+	return nil, nil, false, nil
+}
+
+// placed is a line with the file position of each of its points.
+type placed struct {
+	pts orb.LineString
+	pos []Position
 }
 
 // unmarshalCoords decodes a "coordinates" member; a missing or null member
@@ -282,62 +353,67 @@ func unmarshalCoords(raw json.RawMessage, v any) error {
 	return nil
 }
 
-// positions converts GeoJSON positions to points, keeping x and y.
-func positions(pos [][]float64) (orb.LineString, error) {
-	line := make(orb.LineString, len(pos))
+// positions converts GeoJSON positions to points, keeping x and y; part is
+// the 1-based part of a MultiLineString, 0 for a LineString.
+func positions(pos [][]float64, part int) (placed, error) {
+	l := placed{pts: make(orb.LineString, len(pos)), pos: make([]Position, len(pos))}
 	for i, p := range pos {
 		if len(p) < 2 {
-			return nil, fmt.Errorf("position %d has %d number(s); a position needs at least x and y", i+1, len(p))
+			return placed{}, fmt.Errorf("position %d has %d number(s); a position needs at least x and y", i+1, len(p))
 		}
-		line[i] = orb.Point{p[0], p[1]}
+		l.pts[i] = orb.Point{p[0], p[1]}
+		l.pos[i] = Position{Part: part, Index: i + 1}
 	}
-	return line, nil
+	return l, nil
 }
 
 // joinParts joins MultiLineString parts that each start where the previous
 // one ends. Empty parts are ignored.
-func joinParts(parts []orb.LineString) (orb.LineString, error) {
+func joinParts(parts []placed) (placed, error) {
 	tol := joinToleranceProjected
 	all := make(orb.LineString, 0)
 	for _, p := range parts {
-		all = append(all, p...)
+		all = append(all, p.pts...)
 	}
 	if LooksGeographic(all) {
 		tol = joinToleranceDeg
 	}
-	var out orb.LineString
+	var out placed
 	prev := 0
 	for i, p := range parts {
-		if len(p) == 0 {
+		if len(p.pts) == 0 {
 			continue
 		}
-		if len(out) > 0 {
-			end, start := out[len(out)-1], p[0]
+		if len(out.pts) > 0 {
+			end, start := out.pts[len(out.pts)-1], p.pts[0]
 			gap := math.Hypot(start[0]-end[0], start[1]-end[1])
 			if !(gap <= tol) {
-				return nil, fmt.Errorf("%w: part %d starts %.6g CRS units from the end of part %d (tolerance %g); join the parts or make each its own Feature",
+				return placed{}, fmt.Errorf("%w: part %d starts %.6g CRS units from the end of part %d (tolerance %g); join the parts or make each its own Feature",
 					ErrDisjoint, i+1, gap, prev, tol)
 			}
-			p = p[1:]
+			p.pts, p.pos = p.pts[1:], p.pos[1:]
 		}
-		out = append(out, p...)
+		out.pts = append(out.pts, p.pts...)
+		out.pos = append(out.pos, p.pos...)
 		prev = i + 1
 	}
 	return out, nil
 }
 
-// dropRepeats removes repeated consecutive vertices, in place.
-func dropRepeats(line orb.LineString) orb.LineString {
-	if len(line) == 0 {
-		return line
+// drop removes repeated consecutive vertices in place, keeping the first
+// of each run.
+func (l *placed) drop() {
+	if len(l.pts) == 0 {
+		return
 	}
-	out := line[:1]
-	for _, p := range line[1:] {
-		if p != out[len(out)-1] {
-			out = append(out, p)
+	n := 1
+	for i := 1; i < len(l.pts); i++ {
+		if l.pts[i] != l.pts[n-1] {
+			l.pts[n], l.pos[n] = l.pts[i], l.pos[i]
+			n++
 		}
 	}
-	return out
+	l.pts, l.pos = l.pts[:n], l.pos[:n]
 }
 
 // legacyCRS interprets the pre-RFC 7946 "crs" member:

@@ -24,17 +24,27 @@ type Station struct {
 	// Azimuth is the direction of travel on the segment the station lies
 	// on, in radians clockwise from the work CRS's grid north, in (-π, π].
 	// At a vertex it is the direction of the segment leaving it (entering
-	// it, for the last vertex).
+	// it, for the last vertex); on a curve, the tangent's direction.
 	Azimuth float64
 	// CrossAzimuth is the direction of the station's cross-section line,
 	// pointing to the right of the direction of travel, in radians
 	// clockwise from the work CRS's grid north: Azimuth + π/2 on a
 	// straight, the bisector of the angle between the two segments at an
-	// interior vertex.
+	// interior vertex, radial on a curve.
 	CrossAzimuth float64
-	// Vertex is true when the station is a vertex of the alignment
-	// (including the first and the last point).
+	// Vertex is true when the station is a fixed point of the route: a
+	// vertex of the alignment (including the first and the last point),
+	// or, on a route with curves, a curve's PC or PT, which take the place
+	// of its vertex. Mark says which.
 	Vertex bool
+	// Mark names the fixed point the station stands on (start, end, angle
+	// point, PC, PT); zero for a spacing station. Vertex == (Mark != 0).
+	Mark Mark
+	// Curve is the 1-based number (in Route.Curves) of the curve whose arc
+	// the station lies on, its PC and PT included; where one curve's PT is
+	// the next one's PC, the later curve. 0 on a straight. (int32 packs
+	// it beside Vertex and Mark: a Station stays 112 bytes.)
+	Curve int32
 
 	// Label is the station label in the run's notation (FormatStation):
 	// set by the corridor stage, empty from StationLine.
@@ -204,55 +214,67 @@ func segLen(a, b orb.Point, u float64) float64 {
 // chainage) the later one is dropped, except the last vertex, which always
 // ends the list. Repeated consecutive
 // vertices are ignored. X, Y and WorkX, WorkY are set to the station's
-// coordinates in the work CRS.
+// coordinates in the work CRS. It is StationRoute on the polyline
+// (FitCurves with radius 0).
 func StationLine(line orb.LineString, unitToMetre, spacing, start float64) ([]Station, error) {
-	switch {
-	case unitToMetre == 0:
-		unitToMetre = 1
-	case !(unitToMetre > 0) || math.IsInf(unitToMetre, 0):
-		return nil, fmt.Errorf("%w (got %v)", ErrUnit, unitToMetre)
+	unit, err := checkUnit(unitToMetre)
+	if err != nil {
+		return nil, err
 	}
-	if !(spacing > 0) || math.IsInf(spacing, 0) {
-		return nil, fmt.Errorf("%w (got %v)", ErrSpacing, spacing)
+	if err := checkSpacing(spacing, start); err != nil {
+		return nil, err
 	}
-	if !(math.Abs(start) <= MaxStart) {
-		return nil, fmt.Errorf("%w (got %v)", ErrStart, start)
+	r, err := FitCurves(line, unit, 0)
+	if err != nil {
+		return nil, err
 	}
-	pts := make(orb.LineString, 0, len(line))
-	for i, p := range line {
-		if math.IsNaN(p[0]) || math.IsNaN(p[1]) || math.IsInf(p[0], 0) || math.IsInf(p[1], 0) {
-			return nil, fmt.Errorf("%w: vertex %d is (%v, %v)", ErrGeometry, i+1, p[0], p[1])
-		}
-		if len(pts) == 0 || p != pts[len(pts)-1] {
-			pts = append(pts, p)
-		}
+	return StationRoute(r, spacing, start)
+}
+
+// StationRoute stations a route (from FitCurves) along its straights and
+// arcs. It returns, in order of chainage:
+//
+//   - every fixed point of the route (Vertex true, Mark saying which): its
+//     start at chainage start, its end at start + r.Length, each angle
+//     point, and the PC and PT of every curve, which take the place of the
+//     curve's vertex (no longer on the route);
+//   - a station at each chainage start + k·spacing (k = 1, 2, ...) strictly
+//     inside the route, except that a fixed point within 1 mm takes its
+//     place.
+//
+// On a straight, Azimuth is the straight's direction and CrossAzimuth
+// Azimuth + π/2; at an angle point, as StationLine. On an arc, Azimuth is
+// the tangent's direction and CrossAzimuth is radial, pointing to the right
+// of travel (towards the centre on a right-hand curve). spacing is in
+// metres; start within ±MaxStart. Chainage is strictly increasing, as in
+// StationLine. On a route without curves the result is StationLine's.
+func StationRoute(r *Route, spacing, start float64) ([]Station, error) {
+	if err := checkSpacing(spacing, start); err != nil {
+		return nil, err
 	}
-	if len(pts) < 2 {
-		return nil, fmt.Errorf("%w: %w", ErrGeometry, ErrTooFewPoints)
+	if err := r.check(); err != nil {
+		return nil, err
 	}
-	// dist[i] is the distance (m) from the first vertex to vertex i,
-	// accumulated exactly as Length does.
-	dist := make([]float64, len(pts))
-	for i := 1; i < len(pts); i++ {
-		dist[i] = dist[i-1] + segLen(pts[i-1], pts[i], unitToMetre)
-	}
-	length := dist[len(dist)-1]
-	if math.IsInf(length, 0) || math.IsNaN(length) {
-		return nil, fmt.Errorf("%w: its length overflows", ErrGeometry)
-	}
-	if !(length > 0) {
-		return nil, fmt.Errorf("%w: its length is zero", ErrGeometry)
-	}
+	els := r.Elements
+	nb := len(els) + 1 // fixed points: the elements' starts and the route's end
+	length := r.Length
 	regular := math.Ceil(length/spacing) - 1 // spacing stations strictly inside
 	if regular < 0 {
 		regular = 0
 	}
-	if regular+float64(len(pts)) > MaxStations {
+	if regular+float64(nb) > MaxStations {
 		return nil, fmt.Errorf("%w: spacing %g m on a %.3f m alignment gives about %.0f stations; the limit is %d, so use a spacing of at least %.3g m",
-			ErrTooManyStations, spacing, length, regular+float64(len(pts)), MaxStations, length/(MaxStations-float64(len(pts))))
+			ErrTooManyStations, spacing, length, regular+float64(nb), MaxStations, length/(MaxStations-float64(nb)))
+	}
+	// at[j] is the distance (m) from the route's start to fixed point j.
+	at := func(j int) float64 {
+		if j == len(els) {
+			return els[j-1].To
+		}
+		return els[j].From
 	}
 
-	out := make([]Station, 0, int(regular)+len(pts))
+	out := make([]Station, 0, int(regular)+nb)
 	emit := func(s Station, last bool) {
 		n := len(out)
 		if n > 0 && !(s.Chainage > out[n-1].Chainage) {
@@ -263,45 +285,99 @@ func StationLine(line orb.LineString, unitToMetre, spacing, start float64) ([]St
 		}
 		out = append(out, s)
 	}
-	// az[i] is the azimuth of the segment from vertex i to vertex i+1.
-	az := make([]float64, len(pts)-1)
-	for i := range az {
-		az[i] = azimuth(pts[i], pts[i+1])
-	}
-	vertex := func(i int) Station {
-		p := pts[i]
-		a := az[min(i, len(az)-1)]
-		cross := a + math.Pi/2
-		if i > 0 && i < len(az) {
-			cross = bisector(az[i-1], a)
+	fixed := func(j int) Station {
+		s := Station{Chainage: start + at(j), Vertex: true}
+		var p orb.Point
+		if j < len(els) {
+			p, s.Azimuth, s.Mark, s.Curve = els[j].Start, els[j].StartAzimuth, els[j].Mark, els[j].Curve
+		} else {
+			p, s.Azimuth, s.Mark = els[j-1].End, els[j-1].EndAzimuth, r.EndMark
 		}
-		return Station{Chainage: start + dist[i], X: p[0], Y: p[1], WorkX: p[0], WorkY: p[1],
-			Azimuth: a, CrossAzimuth: cross, Vertex: true}
+		s.CrossAzimuth = s.Azimuth + math.Pi/2
+		if j > 0 && j < len(els) {
+			s.CrossAzimuth = bisector(els[j-1].EndAzimuth, s.Azimuth)
+		}
+		if s.Curve == 0 && j > 0 {
+			s.Curve = els[j-1].Curve // the PT of a curve
+		}
+		s.X, s.Y, s.WorkX, s.WorkY = p[0], p[1], p[0], p[1]
+		return s
 	}
 
-	emit(vertex(0), false)
-	seg := 1 // next vertex ahead
+	emit(fixed(0), false)
+	seg := 1 // next fixed point ahead
 	for k := 1.0; k <= regular; k++ {
 		d := k * spacing
-		for seg < len(pts)-1 && dist[seg] <= d+absorbTolerance {
-			emit(vertex(seg), false)
+		for seg < nb-1 && at(seg) <= d+absorbTolerance {
+			emit(fixed(seg), false)
 			seg++
 		}
-		if d-dist[seg-1] <= absorbTolerance || dist[seg]-d <= absorbTolerance {
-			continue // a vertex stands here
+		if d-at(seg-1) <= absorbTolerance || at(seg)-d <= absorbTolerance {
+			continue // a fixed point stands here
 		}
-		a, b := pts[seg-1], pts[seg]
-		t := (d - dist[seg-1]) / (dist[seg] - dist[seg-1])
-		x, y := a[0]+t*(b[0]-a[0]), a[1]+t*(b[1]-a[1])
-		emit(Station{Chainage: start + d, X: x, Y: y, WorkX: x, WorkY: y, Azimuth: az[seg-1], CrossAzimuth: az[seg-1] + math.Pi/2}, false)
+		s := els[seg-1].station(d, r.UnitToMetre)
+		s.Chainage = start + d
+		emit(s, false)
 	}
-	for ; seg < len(pts); seg++ {
-		emit(vertex(seg), seg == len(pts)-1)
+	for ; seg < nb; seg++ {
+		emit(fixed(seg), seg == nb-1)
 	}
 	if len(out) < 2 {
 		return nil, fmt.Errorf("%w: its length %g m is below the chainage resolution at %g m", ErrGeometry, length, start)
 	}
 	return out, nil
+}
+
+// station is the point of e at distance d (m) from the route's start,
+// From ≤ d ≤ To, in a work CRS of unit u metres; Chainage is left to the
+// caller.
+func (e *Element) station(d, u float64) Station {
+	if e.Curve == 0 {
+		a, b := e.Start, e.End
+		t := (d - e.From) / (e.To - e.From)
+		x, y := a[0]+t*(b[0]-a[0]), a[1]+t*(b[1]-a[1])
+		return Station{X: x, Y: y, WorkX: x, WorkY: y, Azimuth: e.StartAzimuth, CrossAzimuth: e.StartAzimuth + math.Pi/2}
+	}
+	// Turned through (d − From)/R radians from the start, about the centre.
+	sgn := math.Copysign(1, e.Turn)
+	turn := sgn * (d - e.From) / e.Radius
+	theta := math.Atan2(e.Start[0]-e.Centre[0], e.Start[1]-e.Centre[1]) + turn
+	p := offset(e.Centre, theta, e.Radius/u)
+	az := normAzimuth(e.StartAzimuth + turn)
+	return Station{X: p[0], Y: p[1], WorkX: p[0], WorkY: p[1], Azimuth: az, CrossAzimuth: az + math.Pi/2, Curve: e.Curve}
+}
+
+// normAzimuth brings an angle into (−π, π].
+func normAzimuth(a float64) float64 {
+	a = math.Remainder(a, 2*math.Pi)
+	if a <= -math.Pi {
+		a += 2 * math.Pi
+	}
+	return a
+}
+
+// check refuses a route that FitCurves would not have made: nil, empty,
+// or with element distances that are not finite and end to end. (A
+// straight may be shorter than chainage resolution, From == To: vertices
+// of a polyline closer than that, which StationLine has always taken.)
+func (r *Route) check() error {
+	if r == nil || len(r.Elements) == 0 {
+		return fmt.Errorf("%w: the route has no elements", ErrGeometry)
+	}
+	if _, err := checkUnit(r.UnitToMetre); err != nil || r.UnitToMetre == 0 {
+		return fmt.Errorf("%w: the route's unit is %v m", ErrGeometry, r.UnitToMetre)
+	}
+	prev := 0.0
+	for i, e := range r.Elements {
+		if e.From != prev || !(e.To >= e.From) || math.IsInf(e.To, 0) || (e.Curve != 0 && !(e.Radius > 0 && e.To > e.From)) {
+			return fmt.Errorf("%w: route element %d runs from %v m to %v m", ErrGeometry, i+1, e.From, e.To)
+		}
+		prev = e.To
+	}
+	if r.Length != prev {
+		return fmt.Errorf("%w: the route's length %v m is not its last element's end %v m", ErrGeometry, r.Length, prev)
+	}
+	return nil
 }
 
 // azimuth is the grid bearing of a→b in radians clockwise from north.
@@ -317,11 +393,33 @@ func bisector(in, out float64) float64 {
 	return in + d/2 + math.Pi/2
 }
 
-// Stations stations alignment a: it transforms the line to the work CRS
-// (f.ToWork), stations it there with StationLine (spacing and start
-// chainage in metres), then fills X, Y in the DEM's CRS (f.WorkToDEM) and
-// Lon, Lat (f.WorkToLonLat). Errors name the alignment.
+// Stations stations alignment a as a polyline: StationsWith without
+// curves, the route dropped.
 func Stations(a Alignment, f Frames, spacing, start float64) ([]Station, error) {
+	st, _, err := StationsWith(a, f, Options{Spacing: spacing, Start: start})
+	return st, err
+}
+
+// Options control StationsWith.
+type Options struct {
+	// Spacing is the station spacing in metres (> 0).
+	Spacing float64
+	// Start is the chainage of the alignment's first point in metres
+	// (within ±MaxStart).
+	Start float64
+	// CurveRadius is the radius in metres of the circular curve fitted at
+	// every vertex (see FitCurves); 0 keeps the alignment a polyline.
+	CurveRadius float64
+}
+
+// StationsWith stations alignment a: it transforms the line to the work
+// CRS (f.ToWork), builds its route there with FitCurves (o.CurveRadius),
+// stations the route with StationRoute (o.Spacing, o.Start), then fills X,
+// Y in the DEM's CRS (f.WorkToDEM) and Lon, Lat (f.WorkToLonLat). It
+// returns the route too, in the work CRS, with its curve table; each
+// Curve.At names the vertex as it stands in the file (a.VertexName).
+// Errors name the alignment, and a *CurveError the vertex as in the file.
+func StationsWith(a Alignment, f Frames, o Options) ([]Station, *Route, error) {
 	xs := make([]float64, len(a.Line))
 	ys := make([]float64, len(a.Line))
 	for i, p := range a.Line {
@@ -329,25 +427,49 @@ func Stations(a Alignment, f Frames, spacing, start float64) ([]Station, error) 
 	}
 	if f.ToWork != nil {
 		if err := f.ToWork.Transform(xs, ys); err != nil {
-			return nil, fmt.Errorf("alignment %q: transform to the work CRS: %w", a.Name, err)
+			return nil, nil, fmt.Errorf("alignment %q: transform to the work CRS: %w", a.Name, err)
 		}
 	}
 	work := make(orb.LineString, len(xs))
 	for i := range xs {
 		work[i] = orb.Point{xs[i], ys[i]}
 	}
-	st, err := StationLine(work, f.WorkUnitToMetre, spacing, start)
+	fail := func(err error) ([]Station, *Route, error) {
+		return nil, nil, fmt.Errorf("alignment %q: %w", a.Name, err)
+	}
+	unit, err := checkUnit(f.WorkUnitToMetre)
 	if err != nil {
-		return nil, fmt.Errorf("alignment %q: %w", a.Name, err)
+		return fail(err)
+	}
+	if err := checkSpacing(o.Spacing, o.Start); err != nil {
+		return fail(err)
+	}
+	r, err := FitCurves(work, unit, o.CurveRadius)
+	if err != nil {
+		var ce *CurveError
+		if errors.As(err, &ce) {
+			ce.At = a.VertexName(ce.Vertex - 1)
+			if ce.Other > 0 {
+				ce.OtherAt = a.VertexName(ce.Other - 1)
+			}
+		}
+		return fail(err)
+	}
+	for i := range r.Curves {
+		r.Curves[i].At = a.VertexName(r.Curves[i].Vertex - 1)
+	}
+	st, err := StationRoute(r, o.Spacing, o.Start)
+	if err != nil {
+		return fail(err)
 	}
 	xs, ys = make([]float64, len(st)), make([]float64, len(st))
 	if err := apply(f.WorkToDEM, st, xs, ys, func(s *Station, x, y float64) { s.X, s.Y = x, y }); err != nil {
-		return nil, fmt.Errorf("alignment %q: transform stations to the DEM CRS: %w", a.Name, err)
+		return nil, nil, fmt.Errorf("alignment %q: transform stations to the DEM CRS: %w", a.Name, err)
 	}
 	if err := apply(f.WorkToLonLat, st, xs, ys, func(s *Station, x, y float64) { s.Lon, s.Lat = x, y }); err != nil {
-		return nil, fmt.Errorf("alignment %q: transform stations to lon/lat: %w", a.Name, err)
+		return nil, nil, fmt.Errorf("alignment %q: transform stations to lon/lat: %w", a.Name, err)
 	}
-	return st, nil
+	return st, r, nil
 }
 
 // apply transforms the work coordinates of st through t (nil: identity),
