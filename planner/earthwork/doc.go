@@ -1,0 +1,28 @@
+// Package earthwork computes the cut and fill of a canal template against
+// the ground and prices it.
+//
+// One [Template] (bed, inner slopes, banks, outer slopes) is set against the
+// ground at each station of a profile through the [Sections] interface: its
+// Areas method gives the cut and fill areas at a station for a bed
+// elevation, MidAreas those of the mid-section between two stations (for the
+// prismoidal formula) and Catch the catch points where the outer slopes meet
+// the ground. Two implementations exist:
+//
+//   - [Level] takes the ground as level across the section at each station's
+//     centre-line elevation and uses closed-form areas.
+//   - [Cross] uses ground cross-sections (offsets and levels across the line,
+//     as sampled from a DEM) and integrates the irregular ground exactly.
+//
+// [SegmentVolumes] turns the areas of two stations into volumes by the
+// average-end-area or the prismoidal formula, and [Costs.Earthwork] is the
+// one formula that prices the cut and fill of a segment.
+//
+// Lengths are metres, areas square metres, volumes cubic metres, slopes
+// horizontal per unit vertical (H:V). Offsets across the line are negative
+// to the left looking downstream. The methods follow the reference sheet §6
+// (template against ground, exact integration of piecewise-linear sections,
+// volumes between sections), whose route-surveying sources are cited there.
+//
+// Areas, MidAreas and Catch allocate nothing and take no locks: a Sections
+// value may be shared by goroutines once built.
+package earthwork
