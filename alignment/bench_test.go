@@ -1,6 +1,8 @@
 package alignment
 
 import (
+	"fmt"
+	"strings"
 	"testing"
 
 	"github.com/paulmach/orb"
@@ -102,5 +104,30 @@ func BenchmarkLocate(b *testing.B) {
 	b.ReportAllocs()
 	for b.Loop() {
 		r.Locate(430000, 4000900)
+	}
+}
+
+// BenchmarkReadScheme reads a scheme of 200 alignments of 50 vertices with
+// every control, and 200 offtakes.
+func BenchmarkReadScheme(b *testing.B) {
+	var buf strings.Builder
+	buf.WriteString(`{"type":"FeatureCollection","features":[`)
+	for i := range 200 {
+		fmt.Fprintf(&buf, `{"type":"Feature","properties":{"name":"A%d","flow":1.5,"start_invert":100,"end_invert":90,"roughness":0.025,"bottom_width":1,"command_margin":0.1,"curve_radius":50,"corridor":"C%d"},"geometry":{"type":"LineString","coordinates":[`, i, i/2)
+		for j := range 50 {
+			if j > 0 {
+				buf.WriteByte(',')
+			}
+			fmt.Fprintf(&buf, "[%d,%d]", 500000+j*100, 4000000+i*1000+(j%2)*30)
+		}
+		fmt.Fprintf(&buf, `]}},{"type":"Feature","properties":{"name":"O%d","margin":0.2,"alignment":"A%d"},"geometry":{"type":"Point","coordinates":[500050,%d]}},`, i, i, 4000000+i*1000)
+	}
+	data := []byte(strings.TrimSuffix(buf.String(), ",") + "]}")
+	b.SetBytes(int64(len(data)))
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, err := ReadScheme(data); err != nil {
+			b.Fatal(err)
+		}
 	}
 }

@@ -11,12 +11,14 @@
 // Everything here is pure Go and safe to use from many goroutines, since no
 // function keeps state between calls.
 //
-// The entry points are [Read] (GeoJSON to [Alignment]s); [Stations] and
-// [StationsWith] (an alignment and its [Frames] to [Station]s, the latter
-// with curves and the [Route]); [FitCurves] and [StationRoute] (the same
-// steps for a line already in the work CRS; [StationLine] for a
-// polyline); [Route.Locate] and [NearestStation] (where a point falls on
-// the line); [FormatStation] and [ParseStation] (labels such as 1+250.00
-// or, in US customary units, 12+50.00), and [Ranges] (station indices to
+// The entry points are [Read] (GeoJSON to [Alignment]s) and [ReadScheme]
+// (the same with each alignment's own controls, [Overrides], and the
+// [Offtake]s the canal must command); [Stations] and [StationsWith] (an
+// alignment and its [Frames] to [Station]s, the latter with curves and the
+// [Route]); [FitCurves] and [StationRoute] (the same steps for a line
+// already in the work CRS; [StationLine] for a polyline);
+// [Route.Locate] and [NearestStation] (where an offtake falls on the
+// line); [FormatStation] and [ParseStation] (labels such as 1+250.00 or,
+// in US customary units, 12+50.00), and [Ranges] (station indices to
 // readable chainage ranges for messages).
 package alignment

@@ -165,3 +165,32 @@ func ExampleStationRoute() {
 	// 1+114.16  E 501000.00  N 4000200.00  azimuth   0.00° PT
 	// 1+200.00  E 501000.00  N 4000285.84  azimuth   0.00°
 }
+
+// Read a scheme: an alignment with its own flow and radius, an offtake
+// that must be commanded 0.3 m above the ground, and a property nobody
+// reads.
+func ExampleReadScheme() {
+	data := []byte(`{"type":"FeatureCollection","features":[
+	  {"type":"Feature","properties":{"name":"West lateral","flow":0.8,"curve_radius":40,"owner":"district"},
+	   "geometry":{"type":"LineString","coordinates":[[500000,4000000],[500600,4000000],[500900,4000400]]}},
+	  {"type":"Feature","properties":{"name":"Farm gate 3","margin":0.3,"alignment":"West lateral"},
+	   "geometry":{"type":"Point","coordinates":[500450,4000012]}}
+	]}`)
+	sc, err := alignment.ReadScheme(data)
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	a := sc.Alignments[0]
+	fmt.Printf("%s: flow %.2f m³/s, curve radius %.0f m, roughness given: %v\n", a.Name, *a.Overrides.Flow, *a.Overrides.CurveRadius, a.Overrides.Roughness != nil)
+	o := sc.Offtakes[0]
+	fmt.Printf("%s serves %s, margin %.2f m\n", o.Name, o.Alignment, *o.Margin)
+	fmt.Printf("ignored: %q\n", sc.Ignored)
+	_, err = alignment.ReadScheme([]byte(`{"type":"Feature","properties":{"name":"East Branch","flow":"2.5"},"geometry":{"type":"LineString","coordinates":[[0,0],[1,0]]}}`))
+	fmt.Println(err)
+	// Output:
+	// West lateral: flow 0.80 m³/s, curve radius 40 m, roughness given: false
+	// Farm gate 3 serves West lateral, margin 0.30 m
+	// ignored: ["owner"]
+	// feature 1 ("East Branch"): property "flow" must be a number (m³/s), got the string "2.5"
+}

@@ -3,6 +3,7 @@ package alignment
 import (
 	"errors"
 	"math"
+	"slices"
 	"strings"
 	"testing"
 
@@ -72,6 +73,75 @@ func checkAlignments(t *testing.T, as []Alignment) {
 		}
 		keys[k] = true
 	}
+}
+
+// FuzzReadScheme: ReadScheme never panics; its errors are one line and
+// wrap a sentinel; what it accepts Read accepts too, with the same
+// alignments; every control is in its stated range, every offtake has
+// exactly one of its two levels, and Ignored is sorted without repeats
+// and names no property the feature reads.
+func FuzzReadScheme(f *testing.F) {
+	f.Add([]byte(schemeFile))
+	for _, s := range []string{
+		`{"type":"Feature","properties":{"name":"A","flow":"2.5"},"geometry":{"type":"LineString","coordinates":[[0,0],[1,0]]}}`,
+		`{"type":"FeatureCollection","features":[{"type":"Feature","properties":{"name":"A","corridor":"C","roughness":0.2,"curve_radius":1},"geometry":{"type":"LineString","coordinates":[[0,0],[1,0]]}},{"type":"Feature","properties":{"margin":0,"alignment":"C"},"geometry":{"type":"Point","coordinates":[0,0]}}]}`,
+		`{"type":"FeatureCollection","features":[{"type":"Feature","properties":{"flow":1e400},"geometry":{"type":"LineString","coordinates":[[0,0],[1,0]]}}]}`,
+		`{"type":"FeatureCollection","features":[{"type":"Feature","properties":{"command_level":1,"margin":2},"geometry":{"type":"Point","coordinates":[0,0]}}]}`,
+		`{"type":"FeatureCollection","features":[{"type":"Feature","properties":{"name":null,"x":null,"":1},"geometry":{"type":"LineString","coordinates":[[0,0],[1,0]]}},{"properties":{"a":1},"geometry":{"type":"Polygon","coordinates":[]}}]}`,
+		`{"type":"Point","coordinates":[1,2]}`, `{"type":"LineString","coordinates":[[1,1],[1,1]]}`, `[]`, ``,
+	} {
+		f.Add([]byte(s))
+	}
+	sentinels := []error{ErrNotJSON, ErrNotGeoJSON, ErrNoLine, ErrTooFewPoints, ErrDisjoint, ErrProperty}
+	f.Fuzz(func(t *testing.T, data []byte) {
+		sc, err := ReadScheme(data)
+		if err != nil {
+			checkError(t, err, sentinels...)
+			return
+		}
+		checkAlignments(t, sc.Alignments)
+		as, err := Read(data)
+		if err != nil || len(as) != len(sc.Alignments) {
+			t.Fatalf("ReadScheme took %d alignments, Read %d (%v)", len(sc.Alignments), len(as), err)
+		}
+		for i, a := range as {
+			b := sc.Alignments[i]
+			if a.Name != b.Name || !slices.Equal(a.Line, b.Line) || !slices.Equal(a.Positions, b.Positions) {
+				t.Fatalf("alignment %d: Read %q %v, ReadScheme %q %v", i, a.Name, a.Line, b.Name, b.Line)
+			}
+			o := b.Overrides
+			for _, c := range []struct {
+				v  *float64
+				ok bool
+			}{
+				{o.Flow, o.Flow == nil || *o.Flow > 0},
+				{o.StartInvert, o.StartInvert == nil || math.Abs(*o.StartInvert) <= maxLevel},
+				{o.EndInvert, o.EndInvert == nil || math.Abs(*o.EndInvert) <= maxLevel},
+				{o.Roughness, o.Roughness == nil || (*o.Roughness > 0 && *o.Roughness <= 0.2)},
+				{o.BottomWidth, o.BottomWidth == nil || *o.BottomWidth > 0},
+				{o.CommandMargin, o.CommandMargin == nil || *o.CommandMargin >= 0},
+				{o.CurveRadius, o.CurveRadius == nil || *o.CurveRadius >= MinRadius},
+			} {
+				if !c.ok || (c.v != nil && math.IsInf(*c.v, 0)) {
+					t.Fatalf("alignment %q: control %v out of range in %+v", b.Name, *c.v, o)
+				}
+			}
+		}
+		for i, o := range sc.Offtakes {
+			if o.Index != i || o.Name == "" || (o.CommandLevel == nil) == (o.Margin == nil) ||
+				(o.Margin != nil && !(*o.Margin >= 0)) || (o.CommandLevel != nil && !(math.Abs(*o.CommandLevel) <= maxLevel)) {
+				t.Fatalf("offtake %d: %+v", i, o)
+			}
+		}
+		if !slices.IsSorted(sc.Ignored) || len(slices.Compact(slices.Clone(sc.Ignored))) != len(sc.Ignored) {
+			t.Fatalf("Ignored %q not sorted and unique", sc.Ignored)
+		}
+		for _, k := range sc.Ignored {
+			if k == "name" {
+				t.Fatalf("Ignored lists %q, which every feature reads", k)
+			}
+		}
+	})
 }
 
 // FuzzRoute: FitCurves and StationRoute never panic; a route is no longer

@@ -36,6 +36,9 @@ type Alignment struct {
 	// Positions[i] is where Line[i] stands in the file (nil for an
 	// Alignment not read from a file); see VertexName.
 	Positions []Position
+	// Overrides are the alignment's own controls from its properties,
+	// filled by ReadScheme only (all unset from Read).
+	Overrides Overrides
 }
 
 // Position is where a vertex of an alignment stands in its file.
@@ -141,8 +144,8 @@ func Read(data []byte) ([]Alignment, error) {
 	return finish(out, crs)
 }
 
-// rawFeature is one object of a GeoJSON file that may hold an alignment:
-// a Feature, or the file's lone bare geometry.
+// rawFeature is one object of a GeoJSON file that may hold an alignment
+// or an offtake: a Feature, or the file's lone bare geometry.
 type rawFeature struct {
 	n               int // 1-based position in the collection; 1 for a lone object
 	props, geometry json.RawMessage
