@@ -97,10 +97,11 @@ func TestCrossLevelEqualsLevel(t *testing.T) {
 	// with the catch points at the same offsets. The narrow section (±12 m)
 	// puts deep catch points beyond the sampled width: there the ground is
 	// level at the last level, which is the level ground itself, so the
-	// areas still agree and Found is false.
+	// areas still agree and Found is false. The ±5 m section ends inside the
+	// banks (x3 = 8.65 m for two of the templates).
 	tps := []Template{sheetTemplate, crossTemplate, {BedWidth: 2, SideSlope: 0, BankHeight: 1, BankTopWidth: 0, OuterSlope: 3, CutSlope: 0}}
 	for _, tp := range tps {
-		for _, offs := range [][]float64{offsetsEvery(-80, 80, 2.5, true), {-12, -0.4, 0.3, 12}} {
+		for _, offs := range [][]float64{offsetsEvery(-80, 80, 2.5, true), {-12, -0.4, 0.3, 12}, {-5, -0.4, 0.3, 5}} {
 			lv := planeLevels(offs, 57.3, 0)
 			x, err := Cross(tp, [][]float64{offs}, [][]float64{lv})
 			if err != nil {
