@@ -26,6 +26,7 @@ import (
 	"bufio"
 	"fmt"
 	"io"
+	"math"
 	"strconv"
 	"unicode/utf16"
 	"unicode/utf8"
@@ -88,14 +89,21 @@ func Write(w io.Writer, ls []layers.Layer) error {
 
 // checkLonLat checks that every position is a longitude in [-180, 180] and
 // a latitude in [-90, 90]: projected coordinates passed by mistake fail
-// here instead of making a file that maps far away.
+// here instead of making a file that maps far away. A feature spanning more
+// than 180° of longitude is refused too: it crosses the antimeridian, where
+// RFC 7946 §3.1.9 wants it cut in two, and no canal plan is that large.
 func checkLonLat(parts [][]layers.Coord) error {
+	lo, hi := math.Inf(1), math.Inf(-1)
 	for _, p := range parts {
 		for _, c := range p {
 			if !(c[0] >= -180 && c[0] <= 180 && c[1] >= -90 && c[1] <= 90) {
 				return fmt.Errorf("position (%v, %v) is not a longitude and latitude in degrees", c[0], c[1])
 			}
+			lo, hi = math.Min(lo, c[0]), math.Max(hi, c[0])
 		}
+	}
+	if hi-lo > 180 {
+		return fmt.Errorf("the feature spans longitudes %v to %v: it crosses the antimeridian", lo, hi)
 	}
 	return nil
 }

@@ -218,8 +218,8 @@ func TestOgrinfo(t *testing.T) {
 	}
 }
 
-// TestRefused checks that projected coordinates and invalid layers are
-// refused before anything is written.
+// TestRefused checks that projected coordinates, a line across the
+// antimeridian and invalid layers are refused before anything is written.
 func TestRefused(t *testing.T) {
 	var b bytes.Buffer
 	err := Write(&b, fixture.Layers()) // metres, not degrees
@@ -227,6 +227,12 @@ func TestRefused(t *testing.T) {
 		t.Errorf("projected input: error %v", err)
 	}
 	ls := lonLat()
+	ls[0].Features[0].Parts[0][1] = layers.Coord{-179.5, 42}
+	ls[0].Features[0].Parts[0][2] = layers.Coord{179.5, 42}
+	if err := Write(&b, ls); err == nil || !strings.Contains(err.Error(), "antimeridian") {
+		t.Errorf("line across the antimeridian: error %v", err)
+	}
+	ls = lonLat()
 	ls[0].Features[0].Values[1] = layers.Num(math.Inf(1))
 	if err := Write(&b, ls); !errors.Is(err, layers.ErrInvalid) {
 		t.Errorf("infinite value: error %v, want ErrInvalid", err)

@@ -259,6 +259,29 @@ func lastChanges(t *testing.T, path string) string {
 	return strings.Join(vals, ",")
 }
 
+// TestGeographic writes the layers in lon/lat on WGS 84 (EPSG:4326, whose
+// declared axis order is latitude first) and expects GDAL to keep X as the
+// longitude: ogr2ogr's GeoJSON must hold the positions as given, to 1e-12°.
+func TestGeographic(t *testing.T) {
+	ls := lonLat(t, fixture.Layers())
+	path := filepath.Join(t.TempDir(), "plan.gpkg")
+	if err := Write(path, ls, Options{CRS: "EPSG:4326", Date: fixedDate}); err != nil {
+		t.Fatal(err)
+	}
+	out := run(t, "ogr2ogr", "-f", "GeoJSON", "/vsistdout/", path, "stakes")
+	var fc featureCollection
+	if err := json.Unmarshal([]byte(out), &fc); err != nil {
+		t.Fatal(err)
+	}
+	for k, f := range fc.Features {
+		got := flatten(t, f.Geometry.Coordinates)
+		want := ls[3].Features[k].Parts[0][0]
+		if math.Abs(got[0]-want[0]) > 1e-12 || math.Abs(got[1]-want[1]) > 1e-12 {
+			t.Errorf("stake %d at %v, want %v", k, got, want)
+		}
+	}
+}
+
 // TestReproducible writes the same layers twice, a second apart, and
 // expects the same bytes; another date must give another file. It also checks what last_change and the layer descriptions hold.
 func TestReproducible(t *testing.T) {
