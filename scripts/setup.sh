@@ -21,7 +21,7 @@ canalstep_need_pkgs() {
 	DEBIAN_FRONTEND=noninteractive $sudo apt-get install -y -qq --no-install-recommends "${missing[@]}" >/dev/null
 }
 
-canalstep_base_pkgs=(libgdal-dev gdal-bin proj-bin glpk-utils pkg-config g++)
+canalstep_base_pkgs=(libgdal-dev gdal-bin proj-bin glpk-utils libxml2-utils pkg-config g++)
 
 canalstep_setup() {
 	canalstep_need_pkgs "${canalstep_base_pkgs[@]}" "$@"
