@@ -3,8 +3,10 @@
 //
 // The caller passes longitude and latitude in degrees on WGS 84, the only
 // CRS RFC 7946 allows; the writer checks the ranges and writes no "crs"
-// member. The collection carries layers.Caution as a "caution" member (a
-// foreign member, RFC 7946 §6.1, which readers keep or ignore).
+// member. Two foreign members (RFC 7946 §6.1, which readers keep or
+// ignore) come before the features: "caution", layers.Caution, and
+// "layers", each layer's name, geometry type and fields with their type,
+// unit and description.
 // The output is the same bytes on every run and machine:
 //
 //   - one feature per line, in layer order and then feature order;
@@ -56,6 +58,7 @@ func Write(w io.Writer, ls []layers.Layer) error {
 	buf := make([]byte, 0, 4096)
 	buf = append(buf, `{"type":"FeatureCollection","caution":`...)
 	buf = appendString(buf, layers.Caution)
+	buf = appendSchema(buf, ls)
 	buf = append(buf, `,"features":[`...)
 	first := true
 	for _, l := range ls {
@@ -106,6 +109,39 @@ func checkLonLat(parts [][]layers.Coord) error {
 		return fmt.Errorf("the feature spans longitudes %v to %v: it crosses the antimeridian", lo, hi)
 	}
 	return nil
+}
+
+// appendSchema appends the "layers" member: per layer its name, geometry
+// type and fields with their type, unit and description, so a reader of the
+// properties knows what each number measures.
+func appendSchema(b []byte, ls []layers.Layer) []byte {
+	b = append(b, `,"layers":[`...)
+	for i, l := range ls {
+		if i > 0 {
+			b = append(b, ',')
+		}
+		b = append(b, `{"name":`...)
+		b = appendString(b, l.Name)
+		b = append(b, `,"geometry":"`...)
+		b = append(b, l.Kind.String()...)
+		b = append(b, `","fields":[`...)
+		for j, f := range l.Fields {
+			if j > 0 {
+				b = append(b, ',')
+			}
+			b = append(b, `{"name":`...)
+			b = appendString(b, f.Name)
+			b = append(b, `,"type":"`...)
+			b = append(b, f.Type.String()...)
+			b = append(b, `","unit":`...)
+			b = appendString(b, f.Unit)
+			b = append(b, `,"doc":`...)
+			b = appendString(b, f.Doc)
+			b = append(b, '}')
+		}
+		b = append(b, "]}"...)
+	}
+	return append(b, ']')
 }
 
 func appendFeature(b []byte, l *layers.Layer, f *layers.Feature) []byte {

@@ -58,8 +58,8 @@ func TestGolden(t *testing.T) {
 
 // TestRFC7946 checks the rules of RFC 7946 that a decoder can see: a
 // FeatureCollection without "crs" (§4), geometry types and nesting (§3.1),
-// exterior rings counterclockwise (§3.1.6), and the properties in field
-// order after "layer".
+// exterior rings counterclockwise (§3.1.6); and our own: the caution and
+// layer schema members, the properties in field order after "layer".
 func TestRFC7946(t *testing.T) {
 	raw := mustWrite(t, lonLat())
 	var doc map[string]json.RawMessage
@@ -72,6 +72,16 @@ func TestRFC7946(t *testing.T) {
 	var fc struct {
 		Type     string `json:"type"`
 		Caution  string `json:"caution"`
+		Layers   []struct {
+			Name     string `json:"name"`
+			Geometry string `json:"geometry"`
+			Fields   []struct {
+				Name string `json:"name"`
+				Type string `json:"type"`
+				Unit string `json:"unit"`
+				Doc  string `json:"doc"`
+			} `json:"fields"`
+		} `json:"layers"`
 		Features []struct {
 			Type     string `json:"type"`
 			Geometry struct {
@@ -86,6 +96,17 @@ func TestRFC7946(t *testing.T) {
 	}
 	if fc.Type != "FeatureCollection" || fc.Caution != layers.Caution {
 		t.Errorf("type %q, caution %q", fc.Type, fc.Caution)
+	}
+	for i, l := range lonLat() {
+		sl := fc.Layers[i]
+		if sl.Name != l.Name || sl.Geometry != l.Kind.String() || len(sl.Fields) != len(l.Fields) {
+			t.Fatalf("layers[%d] = %+v, want %s %v with %d fields", i, sl, l.Name, l.Kind, len(l.Fields))
+		}
+		for j, f := range l.Fields {
+			if g := sl.Fields[j]; g.Name != f.Name || g.Type != f.Type.String() || g.Unit != f.Unit || g.Doc != f.Doc {
+				t.Errorf("layer %s field %d = %+v, want %+v", l.Name, j, g, f)
+			}
+		}
 	}
 	n := 0
 	for _, l := range lonLat() {
@@ -245,7 +266,7 @@ func TestRefused(t *testing.T) {
 // TestEmpty checks the collection without features.
 func TestEmpty(t *testing.T) {
 	got := string(mustWrite(t, nil))
-	want := `{"type":"FeatureCollection","caution":"` + layers.Caution + `","features":[]}` + "\n"
+	want := `{"type":"FeatureCollection","caution":"` + layers.Caution + `","layers":[],"features":[]}` + "\n"
 	if got != want {
 		t.Errorf("got %q, want %q", got, want)
 	}
@@ -297,7 +318,7 @@ func ExampleWrite() {
 	}
 	fmt.Print(strings.Replace(b.String(), layers.Caution, "…", 1))
 	// Output:
-	// {"type":"FeatureCollection","caution":"…","features":[
+	// {"type":"FeatureCollection","caution":"…","layers":[{"name":"stakes","geometry":"Point","fields":[{"name":"label","type":"string","unit":"","doc":"station label"},{"name":"invert_m","type":"real","unit":"m","doc":"bed elevation"}]}],"features":[
 	// {"type":"Feature","geometry":{"type":"Point","coordinates":[15.12345679,42.5]},"properties":{"layer":"stakes","label":"0+100","invert_m":101.215}}
 	// ]}
 }

@@ -103,7 +103,9 @@ type Field struct {
 	// Unit is the unit symbol of the values ("m", "m/m", "m³/s"), or "" for
 	// text, counts and dimensionless values.
 	Unit string
-	// Doc is a one-sentence description of the column.
+	// Doc is a one-sentence description of the column. Unit and Doc are
+	// written where a format has room for them (report/geojson's "layers"
+	// member).
 	Doc string
 	// Decimals is, for a Real field, the number of decimals every writer
 	// keeps: values are rounded to it (Round) before they are written, so
