@@ -98,6 +98,18 @@ func TestOgrinfo(t *testing.T) {
 	}
 }
 
+// TestEmptyLayer checks that a layer without features is still created,
+// with its fields, and counted as empty.
+func TestEmptyLayer(t *testing.T) {
+	ls := fixture.Layers()[1:2]
+	ls[0].Features = nil
+	path := mustWrite(t, ls, fixedDate)
+	info := run(t, "ogrinfo", "-ro", "-so", path, "drops")
+	if !strings.Contains(info, "Feature Count: 0\n") || !strings.Contains(info, "\nheight_m: Real ") {
+		t.Errorf("ogrinfo:\n%s\nwant an empty drops layer with its fields", info)
+	}
+}
+
 // lonLat converts the fixture's projected layers to longitude and latitude
 // with PROJ's cs2cs (the reference tool), one call for all positions.
 func lonLat(t *testing.T, ls []layers.Layer) []layers.Layer {
