@@ -9,7 +9,7 @@ func benchOptimize(b *testing.B, n int) {
 	p := testProblem(n, 7)
 	b.ReportAllocs()
 	for b.Loop() {
-		if _, err := Optimize(p, nil); err != nil {
+		if _, err := Optimize(p); err != nil {
 			b.Fatal(err)
 		}
 	}
@@ -23,7 +23,7 @@ func BenchmarkOptimize100km(b *testing.B) { benchOptimize(b, 10001) }
 
 // BenchmarkSolve100km times the dynamic programme alone.
 func BenchmarkSolve100km(b *testing.B) {
-	q, err := prepare(testProblem(10001, 7), nil)
+	q, err := prepare(testProblem(10001, 7))
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -34,13 +34,4 @@ func BenchmarkSolve100km(b *testing.B) {
 			b.Fatal(err)
 		}
 	}
-}
-
-func BenchmarkAreas(b *testing.B) {
-	var s float64
-	for i := 0; b.Loop(); i++ {
-		c, f := sheetTemplate.Areas(float64(i%700)*0.01 - 2)
-		s += c + f
-	}
-	_ = s
 }

@@ -5,101 +5,98 @@ import (
 	"math"
 	"sort"
 
+	"canalstep/alignment"
+	"canalstep/planner/earthwork"
 	"canalstep/planner/hydraulics"
 )
 
+// Problem is one canal to plan: its stationed ground profile and its
+// design.
+type Problem struct {
+	// Stations are the profile in chainage order: Chainage and Ground are
+	// required; when every station has a Cross section the earthwork is
+	// taken on those DEM cross-sections, else on level ground.
+	Stations []alignment.Station
+	Design   Design
+}
+
+// LevelProfile returns stations at the given chainages (m) with the given
+// ground (m) and nothing else: a profile for tests and for callers that
+// have a ground profile from elsewhere. It panics if the lengths differ.
+func LevelProfile(chainage, ground []float64) []alignment.Station {
+	if len(chainage) != len(ground) {
+		panic(fmt.Sprintf("planner: LevelProfile with %d chainages and %d elevations", len(chainage), len(ground)))
+	}
+	st := make([]alignment.Station, len(chainage))
+	for i := range st {
+		st[i].Chainage, st[i].Ground = chainage[i], ground[i]
+		st[i].X = chainage[i]
+	}
+	return st
+}
+
 // prepared is a validated problem with everything derived from it.
 type prepared struct {
-	p        Problem
-	s        Settings
+	d        Design
+	st       []alignment.Station
+	c, g     []float64 // chainage and centre-line ground, m
+	cross    bool      // earthwork on DEM cross-sections
 	limits   hydraulics.SlopeLimits
 	grades   []float64
 	depth    []float64 // normal depth per grade, m
-	tpl      []Template
-	costs    Costs
+	tpl      []earthwork.Template
+	sec      []earthwork.Sections // per grade
 	heights  []float64
 	basin    []float64 // basin length per height, m
 	spacing  []float64 // minimum distance from a drop to the next, per height, m
 	transLen float64
 	crest    float64
 	z0       float64
-	maxCut   float64
-	maxFill  float64
-	minReach float64
 	fixedAt  map[int]float64 // station → fixed invert
-	minWLAt  map[int]float64 // station → minimum water level
-	warnings []string
+	minWLAt  map[int]float64 // station → lowest water level (controls and offtakes)
+	wlKind   map[int]Kind    // station → KindMinWaterLevel or KindOfftake
+	margin   []float64       // command margin per station, m; NaN where none
+	offtakes []offtakeAt
 }
 
-func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
+type offtakeAt struct {
+	Offtake
+	station int
+}
 
-func prepare(p Problem, st *Settings) (*prepared, error) {
-	s := st.withDefaults()
-	q := &prepared{p: p, s: s}
-	n := len(p.Chainage)
-	if n < 2 || len(p.Ground) != n {
-		return nil, fmt.Errorf("%w: need at least two stations with one ground elevation each (got %d chainages, %d elevations)", ErrInput, n, len(p.Ground))
-	}
-	for i := 0; i < n; i++ {
-		if !finite(p.Chainage[i]) || !finite(p.Ground[i]) {
-			return nil, fmt.Errorf("%w: station %d has a chainage or ground that is not a number", ErrInput, i)
-		}
-		if i > 0 && !(p.Chainage[i] > p.Chainage[i-1]) {
-			return nil, fmt.Errorf("%w: chainages must increase (station %d at %.3f m follows %.3f m)", ErrInput, i, p.Chainage[i], p.Chainage[i-1])
-		}
-	}
-	if !(s.Step > 0) || !finite(s.Step) {
-		return nil, fmt.Errorf("%w: elevation step %g m must be positive", ErrInput, s.Step)
-	}
-	for _, v := range []struct {
-		name string
-		x    float64
-	}{{"design flow", p.Flow}, {"roughness", p.Roughness}, {"maximum velocity", p.MaxVelocity}} {
-		if !(v.x > 0) || !finite(v.x) {
-			return nil, fmt.Errorf("%w: %s %g must be positive", ErrInput, v.name, v.x)
-		}
-	}
-	if err := p.Section.Validate(); err != nil {
-		return nil, fmt.Errorf("%w: canal section: %v", ErrInput, err)
-	}
-	if !(p.MinVelocity >= 0) || !finite(p.MinVelocity) {
-		return nil, fmt.Errorf("%w: minimum velocity %g must be ≥ 0", ErrInput, p.MinVelocity)
-	}
-	for _, v := range []struct {
-		name string
-		x    float64
-	}{{"maximum cut depth", p.MaxCutDepth}, {"maximum fill height", p.MaxFillHeight}, {"minimum reach", p.MinReach}} {
-		if !(v.x >= 0) || !finite(v.x) {
-			return nil, fmt.Errorf("%w: %s %g m must be ≥ 0", ErrInput, v.name, v.x)
-		}
-	}
-	q.maxCut = orDefault(p.MaxCutDepth, DefaultMaxCutDepth)
-	q.maxFill = orDefault(p.MaxFillHeight, DefaultMaxFillHeight)
-	q.minReach = orDefault(p.MinReach, DefaultMinReach)
-
-	q.costs = DefaultCosts()
-	if p.Costs != nil {
-		q.costs = *p.Costs
-	}
-	if err := q.costs.Validate(); err != nil {
+func prepare(p Problem) (*prepared, error) {
+	d := p.Design
+	if err := d.Validate(); err != nil {
 		return nil, err
 	}
-
-	// Drop heights: positive, whole steps, distinct.
-	if len(p.DropHeights) == 0 {
-		return nil, fmt.Errorf("%w: no drop heights given", ErrInput)
+	n := len(p.Stations)
+	if n < 2 {
+		return nil, fmt.Errorf("%w: need at least two stations (got %d)", ErrInput, n)
 	}
-	hs := append([]float64(nil), p.DropHeights...)
+	q := &prepared{d: d, st: p.Stations, c: make([]float64, n), g: make([]float64, n), cross: true}
+	for i, s := range p.Stations {
+		q.c[i], q.g[i] = s.Chainage, s.Ground
+		if !finite(s.Chainage) || !finite(s.Ground) {
+			return nil, fmt.Errorf("%w: station %d has a chainage or ground that is not a number", ErrInput, i)
+		}
+		if math.Abs(s.Chainage) > 1e9 || !Ranges["level"].Contains(s.Ground) {
+			return nil, fmt.Errorf("%w: station %d at chainage %.2f m has ground %g m, outside %s", ErrInput, i, s.Chainage, s.Ground, Ranges["level"])
+		}
+		if i > 0 && !(s.Chainage > q.c[i-1]) {
+			return nil, fmt.Errorf("%w: chainages must increase (station %d at %.3f m follows %.3f m)", ErrInput, i, s.Chainage, q.c[i-1])
+		}
+		q.cross = q.cross && s.Cross != nil
+	}
+
+	// Drop heights: whole steps, distinct.
+	hs := append([]float64(nil), d.DropHeights...)
 	sort.Float64s(hs)
 	for i, h := range hs {
-		if !(h > 0) || !finite(h) {
-			return nil, fmt.Errorf("%w: drop height %g m must be positive", ErrInput, h)
-		}
-		r := h / s.Step
+		r := h / d.Step
 		if math.Abs(r-math.Round(r)) > 1e-6 {
-			return nil, fmt.Errorf("%w: drop height %g m is not a whole number of elevation steps (%g m)", ErrInput, h, s.Step)
+			return nil, fmt.Errorf("%w: drop height %g m is not a whole number of elevation steps (%g m)", ErrInput, h, d.Step)
 		}
-		if i > 0 && math.Round(r) == math.Round(hs[i-1]/s.Step) {
+		if i > 0 && math.Round(r) == math.Round(hs[i-1]/d.Step) {
 			return nil, fmt.Errorf("%w: drop height %g m is given twice", ErrInput, h)
 		}
 	}
@@ -107,21 +104,15 @@ func prepare(p Problem, st *Settings) (*prepared, error) {
 
 	// Velocity-limited grades.
 	c := hydraulics.SI()
-	lim, err := hydraulics.VelocityLimitedSlopes(c, p.Section, p.Flow, p.Roughness, p.MaxVelocity, p.MinVelocity)
+	lim, err := hydraulics.VelocityLimitedSlopes(c, d.Section, d.Flow, d.Roughness, d.MaxVelocity, d.MinVelocity)
 	if err != nil {
 		return nil, fmt.Errorf("velocity limits: %w", err)
 	}
 	q.limits = lim
-	if p.Grades != nil {
-		if len(p.Grades) == 0 {
-			return nil, fmt.Errorf("%w: empty list of grades", ErrInput)
-		}
-		gs := append([]float64(nil), p.Grades...)
+	if d.Grades != nil {
+		gs := append([]float64(nil), d.Grades...)
 		sort.Sort(sort.Reverse(sort.Float64Slice(gs)))
 		for i, g := range gs {
-			if !(g > 0) || !finite(g) {
-				return nil, fmt.Errorf("%w: grade %g must be positive", ErrInput, g)
-			}
 			if g > lim.MaxSlope*(1+1e-12) || g < lim.MinSlope*(1-1e-12) {
 				return nil, fmt.Errorf("%w: grade %g is outside the velocity-limited range [%g, %g]", ErrInput, g, lim.MinSlope, lim.MaxSlope)
 			}
@@ -131,153 +122,203 @@ func prepare(p Problem, st *Settings) (*prepared, error) {
 		}
 		q.grades = gs
 	} else {
-		q.grades = DefaultGrades(lim.MinSlope, lim.MaxSlope, s.Step, typicalSpacing(p.Chainage), s.GradeCount)
+		q.grades = DefaultGrades(lim.MinSlope, lim.MaxSlope, d.Step, typicalSpacing(q.c), d.GradeCount)
 	}
 	if len(q.grades) > 64 {
 		return nil, fmt.Errorf("%w: %d grades; use at most 64", ErrInput, len(q.grades))
 	}
-	// Per-grade depth and template.
-	base := Template{BedWidth: p.Section.BottomWidth, SideSlope: p.Section.SideSlope,
-		BankTopWidth: DefaultBankTopWidth, OuterSlope: DefaultOuterSlope, CutSlope: DefaultCutSlope}
-	if p.Template != nil {
-		base = *p.Template
+	// Per-grade depth, template and sections.
+	var offsets, levels [][]float64
+	if q.cross {
+		offsets, levels = make([][]float64, n), make([][]float64, n)
+		for i, s := range p.Stations {
+			offsets[i], levels[i] = s.Cross.Offsets, s.Cross.Levels
+		}
 	}
 	for _, g := range q.grades {
-		yn, err := hydraulics.NormalDepth(c, p.Section, p.Flow, p.Roughness, g)
+		yn, err := hydraulics.NormalDepth(c, d.Section, d.Flow, d.Roughness, g)
 		if err != nil {
 			return nil, fmt.Errorf("normal depth at grade %g: %w", g, err)
 		}
-		t := base
-		if t.BankHeight == 0 {
-			t.BankHeight = hydraulics.BankHeight(p.Flow, yn, s.Freeboard)
-		}
+		t := d.template(hydraulics.BankHeight(d.Flow, yn, d.Freeboard))
 		if err := t.Validate(); err != nil {
-			return nil, err
+			return nil, fmt.Errorf("%w: %v", ErrInput, err)
+		}
+		var sec earthwork.Sections
+		if q.cross {
+			if sec, err = earthwork.Cross(t, offsets, levels); err != nil {
+				return nil, fmt.Errorf("%w: cross-sections: %v", ErrInput, err)
+			}
+		} else {
+			sec = earthwork.Level(t, q.g)
 		}
 		q.depth = append(q.depth, yn)
 		q.tpl = append(q.tpl, t)
+		q.sec = append(q.sec, sec)
+	}
+
+	// Command margins per station.
+	q.margin = make([]float64, n)
+	for i := range q.margin {
+		q.margin[i] = math.NaN()
+		for _, r := range d.Command {
+			if q.c[i] >= r.From-1e-9 && q.c[i] <= r.To+1e-9 && !(r.Margin <= q.margin[i]) {
+				q.margin[i] = r.Margin
+			}
+		}
 	}
 
 	// Start invert.
-	if p.StartInvert != nil {
-		q.z0 = *p.StartInvert
-		if !finite(q.z0) {
-			return nil, fmt.Errorf("%w: start invert is not a number", ErrInput)
-		}
+	if d.StartInvert != nil {
+		q.z0 = *d.StartInvert
 	} else {
-		q.z0 = p.Ground[0] - q.depth[0]
+		q.z0 = q.g[0] - q.depth[0]
+		if m := q.margin[0]; !math.IsNaN(m) {
+			q.z0 += m
+		}
 	}
-	if q.z0-p.Ground[0] > q.maxFill {
-		return nil, fmt.Errorf("%w: start invert %.3f m is %.3f m above the ground, more than the maximum fill height %.3f m", ErrInput, q.z0, q.z0-p.Ground[0], q.maxFill)
+	if d.StartInvert != nil && (q.z0-q.g[0] > d.MaxFillHeight+1e-9 || q.g[0]-q.z0 > d.MaxCutDepth+1e-9) {
+		return nil, fmt.Errorf("%w: the start invert %.3f m is %.3f m from the ground %.3f m at the first station, outside the maximum cut depth %.2f m and fill height %.2f m",
+			ErrInput, q.z0, math.Abs(q.z0-q.g[0]), q.g[0], d.MaxCutDepth, d.MaxFillHeight)
 	}
-	if p.Ground[0]-q.z0 > q.maxCut {
-		return nil, fmt.Errorf("%w: start invert %.3f m is %.3f m below the ground, more than the maximum cut depth %.3f m", ErrInput, q.z0, p.Ground[0]-q.z0, q.maxCut)
+	if q.z0-q.g[0] > d.MaxFillHeight+1e-9 {
+		return nil, &InfeasibleError{Conflicts: []Conflict{{Kinds: []Kind{KindStartInvert, KindMaxFill}, Cause: CauseContradict, From: q.c[0], To: q.c[0], Shortage: q.z0 - q.g[0] - d.MaxFillHeight,
+			Limit: d.MaxFillHeight, Value: q.z0 - q.g[0],
+			Hint:  fmt.Sprintf("the start invert %.3f m is %.3f m above the ground, more than the maximum fill height %.3f m; lower the start invert or allow more fill", q.z0, q.z0-q.g[0], d.MaxFillHeight),
+			Flags: []string{"--start-invert", "--max-fill"}}}}
+	}
+	if q.g[0]-q.z0 > d.MaxCutDepth+1e-9 {
+		return nil, &InfeasibleError{Conflicts: []Conflict{{Kinds: []Kind{KindStartInvert, KindMaxCut}, Cause: CauseContradict, From: q.c[0], To: q.c[0], Shortage: q.g[0] - q.z0 - d.MaxCutDepth,
+			Limit: d.MaxCutDepth, Value: q.g[0] - q.z0,
+			Hint:  fmt.Sprintf("the start invert %.3f m is %.3f m below the ground, more than the maximum cut depth %.3f m; raise the start invert or allow deeper cut", q.z0, q.g[0]-q.z0, d.MaxCutDepth),
+			Flags: []string{"--start-invert", "--max-cut"}}}}
 	}
 
-	// Controls.
-	q.fixedAt = map[int]float64{}
-	q.minWLAt = map[int]float64{}
-	for _, ctl := range p.FixedInverts {
-		i, err := q.stationAt(ctl, "fixed invert")
+	// Point controls: at most one per station.
+	q.fixedAt, q.minWLAt, q.wlKind = map[int]float64{}, map[int]float64{}, map[int]Kind{}
+	taken := map[int]string{}
+	claim := func(i int, what string) error {
+		if prev, ok := taken[i]; ok {
+			return fmt.Errorf("%w: %s and %s both stand at chainage %.2f m; give one control per station", ErrInput, prev, what, q.c[i])
+		}
+		taken[i] = what
+		return nil
+	}
+	for _, ctl := range d.FixedInverts {
+		what := fmt.Sprintf("fixed invert %.3f m", ctl.Level)
+		i, err := q.stationAt(ctl.Chainage, what)
 		if err != nil {
+			return nil, err
+		}
+		if err := claim(i, what); err != nil {
 			return nil, err
 		}
 		q.fixedAt[i] = ctl.Level
+		if m := q.margin[i]; !math.IsNaN(m) && ctl.Level+q.depth[len(q.depth)-1] < q.g[i]+m-1e-9 {
+			return nil, fmt.Errorf("%w: %s at chainage %.2f m holds the water surface at most %.3f m there, below the command level %.3f m (ground + %.2f m margin); lower the margin there or raise the fixed invert",
+				ErrInput, what, q.c[i], ctl.Level+q.depth[len(q.depth)-1], q.g[i]+m, m)
+		}
 	}
-	for _, ctl := range p.MinWaterLevels {
-		i, err := q.stationAt(ctl, "minimum water level")
+	addWL := func(ch, level float64, what string, kind Kind) (int, error) {
+		i, err := q.stationAt(ch, what)
+		if err != nil {
+			return 0, err
+		}
+		if err := claim(i, what); err != nil {
+			return 0, err
+		}
+		q.minWLAt[i], q.wlKind[i] = level, kind
+		return i, nil
+	}
+	for _, ctl := range d.MinWaterLevels {
+		if _, err := addWL(ctl.Chainage, ctl.Level, fmt.Sprintf("lowest water level %.3f m", ctl.Level), KindMinWaterLevel); err != nil {
+			return nil, err
+		}
+	}
+	for _, o := range d.Offtakes {
+		i, err := addWL(o.Chainage, o.Level, fmt.Sprintf("offtake %q (command level %.3f m)", o.Name, o.Level), KindOfftake)
 		if err != nil {
 			return nil, err
 		}
-		if old, ok := q.minWLAt[i]; !ok || ctl.Level > old {
-			q.minWLAt[i] = ctl.Level
-		}
+		q.offtakes = append(q.offtakes, offtakeAt{Offtake: o, station: i})
 	}
-	if p.EndInvert != nil && !finite(*p.EndInvert) {
-		return nil, fmt.Errorf("%w: end invert is not a number", ErrInput)
+	if d.EndInvert != nil {
+		if lvl, ok := q.fixedAt[n-1]; ok && math.Abs(lvl-*d.EndInvert) > d.Step/2 {
+			return nil, fmt.Errorf("%w: the end invert %.3f m and a fixed invert %.3f m both stand at the last station", ErrInput, *d.EndInvert, lvl)
+		}
 	}
 
 	// Structures: crest width, transition, basin lengths.
-	q.crest = s.CrestWidth
-	if q.crest == 0 {
-		q.crest = p.Section.BottomWidth
+	q.crest = d.Section.BottomWidth
+	if d.CrestWidth != nil {
+		q.crest = *d.CrestWidth
 	}
 	if !(q.crest > 0) {
 		return nil, fmt.Errorf("%w: drop crest width must be positive (the canal has no bed width; set the crest width)", ErrInput)
 	}
-	q.transLen = s.TransitionLength
-	if q.transLen == 0 {
-		q.transLen = math.Max(1, 2*(p.Section.TopWidth(q.depth[0])-q.crest))
-	}
-	if !(q.transLen >= 0) || !finite(q.transLen) {
-		return nil, fmt.Errorf("%w: transition length %g m must be ≥ 0", ErrInput, q.transLen)
+	if d.TransitionLength != nil {
+		q.transLen = *d.TransitionLength
+	} else {
+		q.transLen = math.Max(1, 2*(d.Section.TopWidth(q.depth[0])-q.crest))
 	}
 	for _, h := range q.heights {
 		var bl float64
-		if s.BasinLength != nil {
-			bl = s.BasinLength(h)
+		if d.BasinLength != nil {
+			bl = d.BasinLength(h)
 		} else {
 			for gi, g := range q.grades {
-				d, err := hydraulics.DesignDrop(c, q.dropInput(h, g, g))
+				dd, err := hydraulics.DesignDrop(c, q.dropInput(h, g, g))
 				if err != nil {
 					return nil, fmt.Errorf("drop of %.2f m at grade %g (depth %.3f m): %w", h, g, q.depth[gi], err)
 				}
-				bl = math.Max(bl, d.BasinLength)
+				bl = math.Max(bl, dd.BasinLength)
 			}
 		}
 		if !(bl >= 0) || !finite(bl) {
 			return nil, fmt.Errorf("%w: basin length %g m for a %.2f m drop", ErrInput, bl, h)
 		}
 		q.basin = append(q.basin, bl)
-		q.spacing = append(q.spacing, bl+q.transLen+q.minReach)
+		q.spacing = append(q.spacing, bl+q.transLen+d.MinReach)
 	}
 	return q, nil
 }
 
-func orDefault(x, d float64) float64 {
-	if x == 0 {
-		return d
-	}
-	return x
-}
-
-func (q *prepared) stationAt(ctl Control, what string) (int, error) {
-	ch := q.p.Chainage
-	if !finite(ctl.Chainage) || !finite(ctl.Level) {
-		return 0, fmt.Errorf("%w: %s control is not a number", ErrInput, what)
-	}
-	i := sort.SearchFloat64s(ch, ctl.Chainage)
+// stationAt returns the station within the control tolerance of chainage
+// ch (m), the nearest one when two are.
+func (q *prepared) stationAt(ch float64, what string) (int, error) {
+	c := q.c
+	i := sort.SearchFloat64s(c, ch)
 	best := -1
 	for _, k := range []int{i - 1, i} {
-		if k >= 0 && k < len(ch) && math.Abs(ch[k]-ctl.Chainage) <= q.s.ControlTolerance {
-			if best < 0 || math.Abs(ch[k]-ctl.Chainage) < math.Abs(ch[best]-ctl.Chainage) {
+		if k >= 0 && k < len(c) && math.Abs(c[k]-ch) <= q.d.ControlTolerance {
+			if best < 0 || math.Abs(c[k]-ch) < math.Abs(c[best]-ch) {
 				best = k
 			}
 		}
 	}
 	if best < 0 {
-		if ctl.Chainage < ch[0] || ctl.Chainage > ch[len(ch)-1] {
-			return 0, fmt.Errorf("%w: %s at chainage %.2f m lies beyond the alignment (%.2f to %.2f m)", ErrInput, what, ctl.Chainage, ch[0], ch[len(ch)-1])
+		if ch < c[0] || ch > c[len(c)-1] {
+			return 0, fmt.Errorf("%w: %s at chainage %.2f m lies beyond the alignment (%.2f to %.2f m)", ErrInput, what, ch, c[0], c[len(c)-1])
 		}
-		return 0, fmt.Errorf("%w: %s at chainage %.2f m is not within %.2f m of a station", ErrInput, what, ctl.Chainage, q.s.ControlTolerance)
+		return 0, fmt.Errorf("%w: %s at chainage %.2f m is not within %.2f m of a station", ErrInput, what, ch, q.d.ControlTolerance)
 	}
 	return best, nil
 }
 
 func (q *prepared) channel(g float64) hydraulics.Channel {
-	return hydraulics.Channel{Section: q.p.Section, N: q.p.Roughness, Slope: g}
+	return hydraulics.Channel{Section: q.d.Section, N: q.d.Roughness, Slope: g}
 }
 
 func (q *prepared) dropInput(h, upGrade, downGrade float64) hydraulics.DropInput {
 	var hold []float64
-	for _, f := range q.s.CheckFlows {
-		if f*q.p.Flow != q.p.Flow {
-			hold = append(hold, f*q.p.Flow)
+	for _, f := range q.d.CheckFlows {
+		if f*q.d.Flow != q.d.Flow {
+			hold = append(hold, f*q.d.Flow)
 		}
 	}
-	return hydraulics.DropInput{Q: q.p.Flow, CrestWidth: q.crest, Height: h,
+	return hydraulics.DropInput{Q: q.d.Flow, CrestWidth: q.crest, Height: h,
 		Downstream: q.channel(downGrade), Upstream: q.channel(upGrade),
-		TransitionLoss: q.s.TransitionLoss, HoldFlows: hold}
+		TransitionLoss: q.d.TransitionLoss, HoldFlows: hold}
 }
 
 // typicalSpacing is the median distance between stations, m.
@@ -290,27 +331,41 @@ func typicalSpacing(c []float64) float64 {
 	return d[len(d)/2]
 }
 
+// lowestWater returns the lowest water level (m) required at station i
+// and whether there is one: a control, an offtake or the command margin.
+func (q *prepared) lowestWater(i int) (level float64, kind Kind, ok bool) {
+	level = math.Inf(-1)
+	if wl, has := q.minWLAt[i]; has {
+		level, kind, ok = wl, q.wlKind[i], true
+	}
+	if m := q.margin[i]; !math.IsNaN(m) && q.g[i]+m > level {
+		level, kind, ok = q.g[i]+m, KindCommand, true
+	}
+	return level, kind, ok
+}
+
 // core builds the discretised problem.
 func (q *prepared) core() *core {
-	n, G := len(q.p.Chainage), len(q.grades)
-	k := &core{c: q.p.Chainage, g: q.p.Ground, z0: q.z0, step: q.s.Step, grades: q.grades, tpl: q.tpl,
-		heights: q.heights, costs: q.costs, volume: q.s.Volume,
-		keep: 1 - q.costs.Shrinkage, invKeep: 1 / (1 - q.costs.Shrinkage)}
+	n, G := len(q.c), len(q.grades)
+	d := &q.d
+	k := &core{c: q.c, z0: q.z0, step: d.Step, maxMemory: d.MaxMemory, grades: q.grades, sec: q.sec,
+		heights: q.heights, costs: d.Costs, volume: d.Volume,
+		keep: 1 - d.Costs.Shrinkage, invKeep: 1 / (1 - d.Costs.Shrinkage)}
 	for _, h := range q.heights {
-		k.hSteps = append(k.hSteps, int(math.Round(h/q.s.Step)))
-		k.dropCost = append(k.dropCost, q.costs.Drop(h))
+		k.hSteps = append(k.hSteps, int(math.Round(h/d.Step)))
+		k.dropCost = append(k.dropCost, d.Costs.Drop(h))
 	}
 	k.zlo = make([][]float64, G)
 	k.zhi = make([][]float64, G)
 	k.loWhy = make([][]uint8, G)
 	k.hiWhy = make([][]uint8, G)
-	half := q.s.Step / 2
+	half := d.Step / 2
 	for g := 0; g < G; g++ {
 		lo, hi := make([]float64, n), make([]float64, n)
 		lw, hw := make([]uint8, n), make([]uint8, n)
 		for i := 0; i < n; i++ {
-			lo[i], lw[i] = q.p.Ground[i]-q.maxCut, whyMaxCut
-			hi[i], hw[i] = q.p.Ground[i]+q.maxFill, whyMaxFill
+			lo[i], lw[i] = q.g[i]-d.MaxCutDepth, whyMaxCut
+			hi[i], hw[i] = q.g[i]+d.MaxFillHeight, whyMaxFill
 			tighten := func(l, h float64, why uint8) {
 				if l > lo[i] {
 					lo[i], lw[i] = l, why
@@ -323,10 +378,17 @@ func (q *prepared) core() *core {
 				tighten(zf-half, zf+half*0.999, whyFixed)
 			}
 			if wl, ok := q.minWLAt[i]; ok {
-				tighten(wl-q.depth[g], math.Inf(1), whyMinWater)
+				why := uint8(whyMinWater)
+				if q.wlKind[i] == KindOfftake {
+					why = whyOfftake
+				}
+				tighten(wl-q.depth[g], math.Inf(1), why)
 			}
-			if i == n-1 && q.p.EndInvert != nil {
-				tighten(*q.p.EndInvert-half, *q.p.EndInvert+half*0.999, whyEnd)
+			if m := q.margin[i]; !math.IsNaN(m) {
+				tighten(q.g[i]+m-q.depth[g], math.Inf(1), whyCommand)
+			}
+			if i == n-1 && d.EndInvert != nil {
+				tighten(*d.EndInvert-half, *d.EndInvert+half*0.999, whyEnd)
 			}
 		}
 		k.zlo[g], k.zhi[g], k.loWhy[g], k.hiWhy[g] = lo, hi, lw, hw
@@ -341,7 +403,7 @@ func (q *prepared) core() *core {
 				continue
 			}
 			next = max(next, j+1)
-			for next < n && q.p.Chainage[next]-q.p.Chainage[j] < q.spacing[h]-1e-9 {
+			for next < n && q.c[next]-q.c[j] < q.spacing[h]-1e-9 {
 				next++
 			}
 			if next < n {
@@ -355,10 +417,10 @@ func (q *prepared) core() *core {
 
 // dropAllowed reports whether a drop may sit at station j: not at either
 // end, at least the minimum reach from the start, not at a control station
-// (fixed invert or minimum water level).
+// (fixed invert, lowest water level or offtake).
 func (q *prepared) dropAllowed(j int) bool {
-	n := len(q.p.Chainage)
-	if j < 1 || j > n-2 || q.p.Chainage[j]-q.p.Chainage[0] < q.minReach-1e-9 {
+	n := len(q.c)
+	if j < 1 || j > n-2 || q.c[j]-q.c[0] < q.d.MinReach-1e-9 {
 		return false
 	}
 	_, fixed := q.fixedAt[j]

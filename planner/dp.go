@@ -3,8 +3,8 @@ package planner
 import (
 	"fmt"
 	"math"
-	"sort"
-	"strings"
+
+	"canalstep/planner/earthwork"
 )
 
 // bound reasons: which constraint set an elevation bound at a station.
@@ -15,30 +15,34 @@ const (
 	whyMinWater
 	whyEnd
 	whyStart
+	whyOfftake
+	whyCommand
 	whyCount
 )
 
-var whyNames = [whyCount]string{
-	"maximum cut depth", "maximum fill height", "fixed invert", "minimum water level", "end invert tie-in", "start invert",
+// whyKinds names each bound reason as a constraint kind.
+var whyKinds = [whyCount]Kind{
+	KindMaxCut, KindMaxFill, KindFixedInvert, KindMinWaterLevel, KindEndInvert, KindStartInvert, KindOfftake, KindCommand,
 }
 
 // core is the discretised problem the dynamic programme solves. Bed
 // elevations are z(i, k, g) = z0 + k·step − grade[g]·(c[i] − c[0]): k is the
 // index of the reach's bed line on the step grid, constant along a reach.
 type core struct {
-	c, g     []float64 // chainage, ground (m)
+	c        []float64 // chainage (m)
 	z0, step float64
 	grades   []float64
-	tpl      []Template // per grade
+	sec      []earthwork.Sections // per grade
 	heights  []float64
 	hSteps   []int
 	dropCost []float64
 	arrive   [][]int // [h][j]: first station a drop of height h at j lets the next drop sit at, -1: no drop there
-	costs    Costs
-	volume   VolumeMethod
+	costs    earthwork.Costs
+	volume   earthwork.VolumeMethod
 	keep     float64 // 1 − shrinkage
 	invKeep  float64 // 1/(1 − shrinkage)
 
+	maxMemory    int64       // bytes the state arrays may take; 0: no limit
 	zlo, zhi     [][]float64 // [g][i] bed elevation bounds (m)
 	loWhy, hiWhy [][]uint8   // [g][i] reason of each bound
 }
@@ -84,7 +88,8 @@ func (p *core) bed(g, i, k int) float64 {
 	return p.z0 + float64(k)*p.step - p.grades[g]*(p.c[i]-p.c[0])
 }
 
-// earthwork is Costs.Earthwork with the shrinkage factors precomputed.
+// earthwork is Costs.Earthwork with the shrinkage factors precomputed; it
+// must agree with Costs.Earthwork (checked by the plan's cost test).
 func (p *core) earthwork(cut, fill float64) float64 {
 	c := &p.costs
 	v := c.Cut*cut + c.Fill*fill
@@ -93,16 +98,6 @@ func (p *core) earthwork(cut, fill float64) float64 {
 	} else {
 		return v + c.Borrow*(fill-usable)
 	}
-}
-
-// segmentCost is the earthwork cost between stations i−1 and i of a bed line
-// with ends at depths d1, d2 below ground, areas (c1, f1) and (c2, f2).
-func (p *core) segmentCost(t *Template, l, d1, d2, c1, f1, c2, f2 float64) float64 {
-	if p.volume == Prismoidal {
-		cm, fm := t.Areas((d1 + d2) / 2)
-		return p.earthwork(PrismoidalVolume(l, c1, cm, c2), PrismoidalVolume(l, f1, fm, f2))
-	}
-	return p.earthwork(l*(c1+c2)/2, l*(f1+f2)/2)
 }
 
 // phaseOffsets groups grades whose bed lines are in step at station i: for
@@ -155,6 +150,18 @@ func (p *core) solve() (*solution, error) {
 		if kmin[g] > kmax[g] {
 			kmin[g], kmax[g] = 0, -1
 		}
+	}
+	// Bound the work before allocating: the state arrays span each grade's
+	// bed-line range, and one decision byte is kept per state.
+	var states0, span int64
+	for g := 0; g < G; g++ {
+		span += int64(kmax[g] - kmin[g] + 1)
+		for i := 0; i < n; i++ {
+			states0 += int64(max(0, whi[g][i]-wlo[g][i]+1))
+		}
+	}
+	if need := span*36 + states0 + int64(n)*int64(G)*16; p.maxMemory > 0 && need > p.maxMemory {
+		return nil, &TooBigError{States: states0, Bytes: need, Limit: p.maxMemory}
 	}
 	// Per-grade state arrays over the bed-line index range.
 	ft := make([][]float64, G) // cost so far minus running earthwork of the bed line
@@ -213,14 +220,20 @@ func (p *core) solve() (*solution, error) {
 		}
 		x := 0 - kmin[g]
 		ft[g][x], pr[g][x], since[g][x] = 0, 0, 0
-		ec[g][x], ef[g][x] = p.tpl[g].Areas(p.g[0] - p.z0)
+		ec[g][x], ef[g][x] = p.sec[g].Areas(0, p.z0)
 	}
 	live := false
 	for g := 0; g < G; g++ {
 		live = live || wlo[g][0] <= whi[g][0]
 	}
+	// conflicts collects every stretch where no profile survives; after one
+	// the programme restarts from every bed line that meets the bounds, as
+	// if the conflict were resolved, to find the stretches after it.
+	var conflicts []Conflict
+	reseed := false
 	if !live {
-		return nil, p.infeasible(0, 0, killMaskStart(p))
+		conflicts = append(conflicts, p.conflict(0, 0, killMaskStart(p)))
+		reseed = true
 	}
 
 	rep := make([]int, G)
@@ -233,7 +246,6 @@ func (p *core) solve() (*solution, error) {
 	for i := 1; i < n; i++ {
 		l := p.c[i] - p.c[i-1]
 		di := p.c[i] - p.c[0]
-		gi, gprevStation := p.g[i], p.g[i-1]
 		for g := 0; g < G; g++ {
 			olo, ohi := wlo[g][i-1], whi[g][i-1]
 			nlo, nhi := wlo[g][i], whi[g][i]
@@ -252,7 +264,7 @@ func (p *core) solve() (*solution, error) {
 					f[x] = inf
 				}
 			}
-			t := &p.tpl[g]
+			sec := p.sec[g]
 			s := p.grades[g]
 			// Bed lines entering the window start a new feasible run.
 			for k := nlo; k <= nhi; k++ {
@@ -266,11 +278,11 @@ func (p *core) solve() (*solution, error) {
 			// earthwork; every line in the window records its end areas.
 			a, bnd := max(nlo, olo), min(nhi, ohi)
 			zb := p.z0 - s*di
-			if p.volume == AverageEndArea && a <= bnd {
+			if p.volume == earthwork.AverageEndArea && a <= bnd {
 				hl := l / 2
 				for k := a; k <= bnd; k++ {
 					x := k - km
-					ac, af := t.Areas(gi - (zb + float64(k)*p.step))
+					ac, af := sec.Areas(i, zb+float64(k)*p.step)
 					pp[x] += p.earthwork(hl*(cc[x]+ac), hl*(ff[x]+af))
 					cc[x], ff[x] = ac, af
 				}
@@ -278,9 +290,9 @@ func (p *core) solve() (*solution, error) {
 				for k := a; k <= bnd; k++ {
 					x := k - km
 					z := zb + float64(k)*p.step
-					d := gi - z
-					ac, af := t.Areas(d)
-					pp[x] += p.segmentCost(t, l, gprevStation-(z+s*l), d, cc[x], ff[x], ac, af)
+					ac, af := sec.Areas(i, z)
+					cm, fm := sec.MidAreas(i, z+s*l, z)
+					pp[x] += p.earthwork(earthwork.PrismoidalVolume(l, cc[x], cm, ac), earthwork.PrismoidalVolume(l, ff[x], fm, af))
 					cc[x], ff[x] = ac, af
 				}
 			}
@@ -290,7 +302,7 @@ func (p *core) solve() (*solution, error) {
 					continue
 				}
 				x := k - km
-				cc[x], ff[x] = t.Areas(gi - (zb + float64(k)*p.step))
+				cc[x], ff[x] = sec.Areas(i, zb+float64(k)*p.step)
 			}
 			states += int64(max(0, nhi-nlo+1))
 		}
@@ -334,7 +346,18 @@ func (p *core) solve() (*solution, error) {
 			for g := 0; g < G; g++ {
 				killMask[i] |= 1<<p.loWhy[g][i] | 1<<p.hiWhy[g][i]
 			}
-			return nil, p.infeasible(i, i, killMask)
+			conflicts = append(conflicts, p.conflict(i, i, killMask))
+			lastLive, reseed = i, true
+			continue
+		}
+		if reseed { // restart after a conflict: every bed line here is a start
+			for g := 0; g < G; g++ {
+				for k := wlo[g][i]; k <= whi[g][i]; k++ {
+					x := k - kmin[g]
+					ft[g][x], pr[g][x], since[g][x] = 0, 0, int32(i)
+				}
+			}
+			reseed = false
 		}
 		any := false
 		for g := 0; g < G && !any; g++ {
@@ -349,7 +372,9 @@ func (p *core) solve() (*solution, error) {
 		if any {
 			lastLive = i
 		} else if pendingLive == 0 {
-			return nil, p.infeasible(lastLive, i, killMask)
+			conflicts = append(conflicts, p.conflict(lastLive, i, killMask))
+			lastLive, reseed = i, true
+			continue
 		}
 		if !any || i == n-1 {
 			continue
@@ -483,8 +508,11 @@ func (p *core) solve() (*solution, error) {
 			}
 		}
 	}
-	if bg < 0 {
-		return nil, p.infeasible(lastLive, n-1, killMask)
+	if bg < 0 && (len(conflicts) == 0 || conflicts[len(conflicts)-1].station != n-1) {
+		conflicts = append(conflicts, p.conflict(lastLive, n-1, killMask))
+	}
+	if len(conflicts) > 0 {
+		return nil, &InfeasibleError{Conflicts: conflicts}
 	}
 	// Backtrack.
 	sol := &solution{cost: best, states: states}
@@ -544,30 +572,9 @@ func killMaskStart(p *core) []uint8 {
 	return m
 }
 
-// InfeasibleError says that no profile meets every constraint on the
-// discretisation: Constraints name the binding ones, and the chainage range
-// (m) is where they bind.
-type InfeasibleError struct {
-	Constraints []string
-	From, To    float64 // chainage range, m
-	Hint        string
-}
-
-func (e *InfeasibleError) Error() string {
-	var b strings.Builder
-	fmt.Fprintf(&b, "planner: no feasible profile: %s cannot be met", strings.Join(e.Constraints, " and "))
-	if e.From == e.To {
-		fmt.Fprintf(&b, " at chainage %.2f m", e.From)
-	} else {
-		fmt.Fprintf(&b, " between chainage %.2f m and %.2f m", e.From, e.To)
-	}
-	if e.Hint != "" {
-		b.WriteString("; " + e.Hint)
-	}
-	return b.String()
-}
-
-func (p *core) infeasible(lastLive, i int, killMask []uint8) error {
+// conflict describes the stretch ending at station i where the bounds
+// named in killMask cut off every profile that survived to lastLive.
+func (p *core) conflict(lastLive, i int, killMask []uint8) Conflict {
 	var mask uint8
 	start := i
 	for s := i; s >= 0 && s > lastLive-1; s-- {
@@ -579,31 +586,19 @@ func (p *core) infeasible(lastLive, i int, killMask []uint8) error {
 	if mask == 0 {
 		// Nothing was killed by a bound: every state failed the spacing
 		// of drops.
-		return &InfeasibleError{Constraints: []string{"drop spacing"}, From: p.c[lastLive], To: p.c[i],
-			Hint: "drops cannot be spaced by their basin, transition and minimum reach here"}
+		return Conflict{Kinds: []Kind{KindDropSpacing}, Cause: CauseSpacing, From: p.c[lastLive], To: p.c[i],
+			Hint: "drops cannot be spaced by their basin, transition and minimum reach here", Flags: []string{"--min-reach", "--drop-heights"}}
 	}
 	// Extend the range back over the run of stations where the same bounds
 	// were already cutting states off.
-	for start > 0 && killMask[start-1]&mask != 0 {
+	for start > 0 && start > lastLive && killMask[start-1]&mask != 0 {
 		start--
 	}
-	var names []string
+	var kinds []Kind
 	for w := 0; w < whyCount; w++ {
 		if mask&(1<<w) != 0 {
-			names = append(names, whyNames[w])
+			kinds = append(kinds, whyKinds[w])
 		}
 	}
-	sort.Strings(names)
-	e := &InfeasibleError{Constraints: names, From: p.c[start], To: p.c[i]}
-	switch {
-	case mask&(1<<whyEnd) != 0:
-		e.Hint = "the end invert cannot be reached with the allowed grades and drops; check it or free the end"
-	case mask&(1<<whyFixed) != 0 || mask&(1<<whyMinWater) != 0:
-		e.Hint = "a control conflicts with the cut and fill limits or cannot be reached from upstream"
-	case mask&(1<<whyMaxFill) != 0 && mask&(1<<whyMaxCut) == 0:
-		e.Hint = "the ground falls faster than the steepest grade and the allowed drops at their minimum spacing can follow; allow higher drops, more fill or a shorter minimum reach"
-	case mask&(1<<whyMaxCut) != 0 && mask&(1<<whyMaxFill) == 0:
-		e.Hint = "the ground rises above the bed by more than the cut allowed; allow deeper cut, a flatter grade or a higher start"
-	}
-	return e
+	return Conflict{Kinds: kinds, From: p.c[start], To: p.c[i], station: i, startStation: start}
 }

@@ -5,22 +5,9 @@ import (
 	"fmt"
 	"strings"
 
+	"canalstep/planner/earthwork"
 	"canalstep/planner/hydraulics"
 )
-
-func ExampleTemplate_Areas() {
-	// The reference sheet's §6.1 template: b = 3 m, inner slopes 1.5:1,
-	// banks 2.1 m high and 4 m wide, outer slopes 2:1.
-	t := Template{BedWidth: 3, SideSlope: 1.5, BankHeight: 2.1, BankTopWidth: 4, OuterSlope: 2, CutSlope: 2}
-	for _, d := range []float64{0, 1, 1.40871} {
-		cut, fill := t.Areas(d)
-		fmt.Printf("bed %.5f m below ground: cut %.3f m², fill %.3f m²\n", d, cut, fill)
-	}
-	// Output:
-	// bed 0.00000 m below ground: cut 0.000 m², fill 32.235 m²
-	// bed 1.00000 m below ground: cut 4.500 m², fill 13.035 m²
-	// bed 1.40871 m below ground: cut 7.203 m², fill 7.203 m²
-}
 
 func ExampleDefaultGrades() {
 	// Velocity limits give grades 0.0002–0.0013; a 1 cm step at 10 m stations.
@@ -39,9 +26,11 @@ func ExampleCompare() {
 	for i := range c {
 		c[i], g[i] = 10*float64(i), 80-0.015*10*float64(i)
 	}
-	p := Problem{Chainage: c, Ground: g, Flow: 1, Section: hydraulics.Section{BottomWidth: 1, SideSlope: 1.5},
-		Roughness: 0.025, MaxVelocity: 0.9, MinVelocity: 0.3}
-	for _, a := range Compare(p, nil, [][]float64{{0.5}, {1.0}, {1.5}, {0.5, 1.0, 1.5}}, 2) {
+	d := DefaultDesign()
+	d.Flow, d.Section, d.Roughness = 1, hydraulics.Section{BottomWidth: 1, SideSlope: 1.5}, 0.025
+	d.MaxVelocity, d.MinVelocity = 0.9, 0.3
+	p := Problem{Stations: LevelProfile(c, g), Design: d}
+	for _, a := range Compare(p, [][]float64{{0.5}, {1.0}, {1.5}, {0.5, 1.0, 1.5}}, 2) {
 		if a.Err != nil {
 			fmt.Println(a.DropHeights, a.Err)
 			continue
@@ -50,7 +39,7 @@ func ExampleCompare() {
 			a.Result.Totals.DropCount, a.Result.Totals.CutVolume, a.Result.Totals.FillVolume, a.Result.Totals.TotalCost)
 	}
 	// Output:
-	// [0.5] planner: no feasible profile: maximum fill height cannot be met between chainage 740.00 m and 780.00 m; the ground falls faster than the steepest grade and the allowed drops at their minimum spacing can follow; allow higher drops, more fill or a shorter minimum reach
+	// [0.5] planner: no feasible profile: max fill height cannot be met at chainage 780.00 m: the ground falls faster than the steepest grade 0.0020106 and drops of 0.50 m at their spacing can follow: the bed stays 0.04 m above the fill limit
 	// heights [1] m: 12 drops, cut 3390 m³, fill 1878 m³, cost 340548
 	// heights [1.5] m: 8 drops, cut 4428 m³, fill 2014 m³, cost 289773
 	// heights [0.5 1 1.5] m: 8 drops, cut 4428 m³, fill 2014 m³, cost 289773
@@ -58,11 +47,13 @@ func ExampleCompare() {
 
 func ExampleWriteLP() {
 	c, g := []float64{0, 10, 20, 30, 40, 50}, []float64{10, 9.8, 9.6, 9.3, 9.1, 8.9}
-	p := Problem{Chainage: c, Ground: g, Flow: 0.5, Section: hydraulics.Section{BottomWidth: 0.5, SideSlope: 1},
-		Roughness: 0.015, MaxVelocity: 2.0, MinVelocity: 0.6, Grades: []float64{0.005}, DropHeights: []float64{0.5},
-		MinReach: 5, Template: &Template{BedWidth: 2, BankHeight: 1}, Costs: &Costs{Cut: 4, Fill: 6, DropFixed: 300}}
+	d := linearDesign()
+	d.Grades, d.DropHeights = []float64{0.005}, []float64{0.5}
+	d.Costs = earthwork.Costs{Cut: 4, Fill: 6, DropFixed: 300}
+	d.BasinLength = func(float64) float64 { return 4 }
+	p := Problem{Stations: LevelProfile(c, g), Design: d}
 	var b bytes.Buffer
-	if err := WriteLP(&b, p, &Settings{BasinLength: func(float64) float64 { return 4 }, TransitionLength: 1}); err != nil {
+	if err := WriteLP(&b, p); err != nil {
 		fmt.Println(err)
 		return
 	}

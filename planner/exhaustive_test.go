@@ -7,6 +7,7 @@ import (
 	"math/rand/v2"
 	"testing"
 
+	"canalstep/planner/earthwork"
 	"canalstep/planner/hydraulics"
 )
 
@@ -15,12 +16,17 @@ import (
 // limits are about 0.00034 to 0.0087).
 // Drops are priced low (tiny cases are 60–80 m long) so that optima use them.
 func steepCanal(c, g []float64) Problem {
-	return Problem{Chainage: c, Ground: g, Flow: 0.5, Section: hydraulics.Section{BottomWidth: 0.5, SideSlope: 1},
-		Roughness: 0.015, MaxVelocity: 2.0, MinVelocity: 0.6, Costs: &tinyCosts}
+	d := DefaultDesign()
+	d.Flow, d.Section, d.Roughness = 0.5, hydraulics.Section{BottomWidth: 0.5, SideSlope: 1}, 0.015
+	d.MaxVelocity, d.MinVelocity, d.Costs = 2.0, 0.6, tinyCosts
+	d.TransitionLength = ptr(1)
+	return Problem{Stations: LevelProfile(c, g), Design: d}
 }
 
+func ptr(x float64) *float64 { return &x }
+
 // tinyCosts: illustrative prices for the tiny cases (no source).
-var tinyCosts = Costs{Cut: 4, Fill: 6, Shrinkage: 0.1, Waste: 2, Borrow: 8, DropFixed: 150, DropPerMetre: 100}
+var tinyCosts = earthwork.Costs{Cut: 4, Fill: 6, Shrinkage: 0.1, Waste: 2, Borrow: 8, DropFixed: 150, DropPerMetre: 100}
 
 // tinyGround is n stations at 10 m with a seeded, bumpy fall of about 3 %.
 func tinyGround(n int, seed uint64) (c, g []float64) {
@@ -41,14 +47,14 @@ func tinyGround(n int, seed uint64) (c, g []float64) {
 // and prices it, independently of the dynamic programme. It returns the least
 // cost and the number of feasible profiles.
 func exhaustive(q *prepared) (best float64, feasible int) {
-	c := q.p.Chainage
+	c := q.c
 	n := len(c)
 	best = math.Inf(1)
 	var rec func(drops []dropSpec, grades []int)
 	rec = func(drops []dropSpec, grades []int) {
-		if len(q.violations(drops, grades)) == 0 {
+		if pl := q.evaluate(drops, grades); len(q.violations(pl, drops)) == 0 {
 			feasible++
-			best = math.Min(best, q.evaluate(drops, grades).Totals.TotalCost)
+			best = math.Min(best, pl.Totals.TotalCost)
 		}
 		first := 1
 		if len(drops) > 0 {
@@ -67,7 +73,7 @@ func exhaustive(q *prepared) (best float64, feasible int) {
 			}
 			for _, h := range q.heights {
 				for g := range q.grades {
-					m := (q.grades[g] - q.grades[cur]) * (c[j] - c[0]) / q.s.Step
+					m := (q.grades[g] - q.grades[cur]) * (c[j] - c[0]) / q.d.Step
 					if math.Abs(m-math.Round(m)) > 1e-6 {
 						continue
 					}
@@ -91,7 +97,7 @@ func TestOptimumMatchesExhaustiveSearch(t *testing.T) {
 		heights  []float64
 		basin    float64 // fixed basin length, m
 		minReach float64
-		volume   VolumeMethod
+		volume   earthwork.VolumeMethod
 		mod      func(p *Problem)
 	}{
 		// Grades 0.001 apart stay in step on a 1 cm grid at 10 m stations,
@@ -100,43 +106,45 @@ func TestOptimumMatchesExhaustiveSearch(t *testing.T) {
 		{name: "next drop at the next station", n: 7, seed: 8, grades: []float64{0.008, 0.002}, heights: []float64{0.5}, basin: 2, minReach: 2},
 		{name: "default grades, three heights", n: 9, seed: 2, heights: []float64{0.2, 0.4, 0.7}, basin: 6, minReach: 5},
 		{name: "spacing two stations", n: 9, seed: 3, grades: []float64{0.008, 0.004}, heights: []float64{0.5, 1.0}, basin: 6, minReach: 5},
-		{name: "prismoidal volumes", n: 8, seed: 4, grades: []float64{0.007, 0.002}, heights: []float64{0.4}, basin: 6, minReach: 5, volume: Prismoidal},
+		{name: "prismoidal volumes", n: 8, seed: 4, grades: []float64{0.007, 0.002}, heights: []float64{0.4}, basin: 6, minReach: 5, volume: earthwork.Prismoidal},
 		{name: "tight cut and fill", n: 8, seed: 5, grades: []float64{0.008, 0.006, 0.001}, heights: []float64{0.3, 0.9}, basin: 6, minReach: 5,
-			mod: func(p *Problem) { p.MaxCutDepth, p.MaxFillHeight = 1.2, 0.6 }},
+			mod: func(p *Problem) { p.Design.MaxCutDepth, p.Design.MaxFillHeight = 1.2, 0.6 }},
 		{name: "end tie-in and fixed invert", n: 9, seed: 6, grades: []float64{0.008, 0.005}, heights: []float64{0.3, 0.5}, basin: 6, minReach: 5,
 			mod: func(p *Problem) {
 				// Levels reachable on the grid: the start invert minus whole
 				// steps and the grade's fall (chosen from a feasible profile).
-				z0 := p.Ground[0] - 0.4
-				p.StartInvert = &z0
+				z0 := p.Stations[0].Ground - 0.4
+				p.Design.StartInvert = &z0
 				end := z0 - 0.008*80 - 0.3 - 0.5
-				p.EndInvert = &end
-				p.FixedInverts = []Control{{Chainage: 30, Level: z0 - 0.008*30}}
+				p.Design.EndInvert = &end
+				p.Design.FixedInverts = []Control{{Chainage: 30, Level: z0 - 0.008*30}}
 			}},
 		// Irregular stations (alignment vertices): grades 0.003 apart are in
 		// step only at chainages that are multiples of 10/3 m, and several
 		// drop stations free the next drop at the same station.
 		{name: "irregular stations", n: 9, seed: 9, grades: []float64{0.008, 0.005}, heights: []float64{0.3, 0.6}, basin: 5, minReach: 4,
-			mod: func(p *Problem) { copy(p.Chainage, []float64{0, 10, 17, 30, 36.5, 40, 52, 60, 70}) }},
+			mod: func(p *Problem) { setChainages(p, 0, 10, 17, 30, 36.5, 40, 52, 60, 70) }},
 		{name: "minimum water level", n: 8, seed: 7, grades: []float64{0.008, 0.004}, heights: []float64{0.3, 0.6}, basin: 6, minReach: 5,
-			mod: func(p *Problem) { p.MinWaterLevels = []Control{{Chainage: 40, Level: p.Ground[4] + 0.2}} }},
+			mod: func(p *Problem) {
+				p.Design.MinWaterLevels = []Control{{Chainage: 40, Level: p.Stations[4].Ground + 0.2}}
+			}},
 	}
 	var withDrops, withGradeChange int
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
 			c, g := tinyGround(tc.n, tc.seed)
 			p := steepCanal(c, g)
-			p.Grades, p.DropHeights, p.MinReach = tc.grades, tc.heights, tc.minReach
+			p.Design.Grades, p.Design.DropHeights, p.Design.MinReach = tc.grades, tc.heights, tc.minReach
 			if tc.mod != nil {
 				tc.mod(&p)
 			}
-			st := &Settings{Volume: tc.volume, TransitionLength: 1, BasinLength: func(float64) float64 { return tc.basin }}
-			q, err := prepare(p, st)
+			p.Design.Volume, p.Design.BasinLength = tc.volume, func(float64) float64 { return tc.basin }
+			q, err := prepare(p)
 			if err != nil {
 				t.Fatal(err)
 			}
 			want, nfeas := exhaustive(q)
-			res, err := Optimize(p, st)
+			res, err := Optimize(p)
 			if math.IsInf(want, 1) {
 				if !errors.Is(err, ErrInfeasible) {
 					t.Fatalf("exhaustive search finds no feasible profile; Optimize: %v", err)
@@ -174,10 +182,10 @@ func ExampleOptimize() {
 	for i := range c {
 		c[i], g[i] = 10*float64(i), 50-0.03*10*float64(i)
 	}
-	p := Problem{Chainage: c, Ground: g, Flow: 0.5, Section: hydraulics.Section{BottomWidth: 0.5, SideSlope: 1},
-		Roughness: 0.015, MaxVelocity: 2.0, MinVelocity: 0.6, DropHeights: []float64{0.5, 1.0}, Grades: []float64{0.008}, MinReach: 5,
-		Costs: &Costs{Cut: 4, Fill: 6, Shrinkage: 0.1, Waste: 2, Borrow: 8, DropFixed: 150, DropPerMetre: 100}}
-	res, err := Optimize(p, &Settings{BasinLength: func(float64) float64 { return 3 }, TransitionLength: 1})
+	p := steepCanal(c, g)
+	p.Design.DropHeights, p.Design.Grades, p.Design.MinReach = []float64{0.5, 1.0}, []float64{0.008}, 5
+	p.Design.BasinLength = func(float64) float64 { return 3 }
+	res, err := Optimize(p)
 	if err != nil {
 		fmt.Println(err)
 		return
@@ -186,7 +194,7 @@ func ExampleOptimize() {
 	for _, d := range res.Drops {
 		fmt.Printf("drop %.1f m at chainage %.0f m: invert %.3f → %.3f m\n", d.Height, d.Chainage, d.UpstreamInvert, d.DownstreamInvert)
 	}
-	fmt.Printf("total cost %.0f, baseline %.0f\n", res.Totals.TotalCost, res.Baseline.Totals.TotalCost)
+	fmt.Printf("total cost %.0f, baseline %.0f\n", res.Totals.TotalCost, res.EvenSpacing.Totals.TotalCost)
 	// Output:
 	// optimal
 	// drop 1.0 m at chainage 10 m: invert 49.604 → 48.604 m

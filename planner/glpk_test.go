@@ -15,15 +15,13 @@ import (
 	"time"
 
 	"canalstep/testdata/reftool"
-	"canalstep/planner/hydraulics"
 )
 
-// mipProblem is the single-grade case that WriteLP models: a rectangular
-// template without banks (areas linear in depth), no waste or borrow price,
-// one grade and one drop height. The ground is seeded synthetic: a 1.5 %
-// fall, a 200 m undulation of ±0.5 m and small roughness; prices are
+// mipProblem is the single-grade case that WriteLP models (linearDesign)
+// with one grade and one drop height. The ground is seeded synthetic: a
+// 1.5 % fall, a 200 m undulation of ±0.5 m and small roughness; prices are
 // illustrative (no source).
-func mipProblem(n int, seed uint64) (Problem, *Settings) {
+func mipProblem(n int, seed uint64) Problem {
 	r := rand.New(rand.NewPCG(seed, 3))
 	c, g := make([]float64, n), make([]float64, n)
 	ph, rough := 2*math.Pi*r.Float64(), 0.0
@@ -32,12 +30,10 @@ func mipProblem(n int, seed uint64) (Problem, *Settings) {
 		rough = 0.7*rough + 0.05*r.NormFloat64()
 		g[i] = 100 - 0.015*c[i] + 0.5*math.Sin(2*math.Pi*c[i]/200+ph) + rough
 	}
-	p := Problem{Chainage: c, Ground: g, Flow: 0.5, Section: hydraulics.Section{BottomWidth: 0.5, SideSlope: 1},
-		Roughness: 0.015, MaxVelocity: 2.0, MinVelocity: 0.6,
-		DropHeights: []float64{1.0}, Grades: []float64{0.005}, MinReach: 5, MaxCutDepth: 3, MaxFillHeight: 1.5,
-		Template: &Template{BedWidth: 2, BankHeight: 1},
-		Costs:    &Costs{Cut: 4, Fill: 6, DropFixed: 300, DropPerMetre: 200}}
-	return p, &Settings{TransitionLength: 1, BasinLength: func(float64) float64 { return 6 }}
+	d := linearDesign()
+	d.DropHeights, d.Grades, d.MaxCutDepth, d.MaxFillHeight = []float64{1.0}, []float64{0.005}, 3, 1.5
+	d.BasinLength = func(float64) float64 { return 6 }
+	return Problem{Stations: LevelProfile(c, g), Design: d}
 }
 
 // glpsolObjective solves an LP file with glpsol and returns the MIP objective
@@ -84,13 +80,13 @@ func TestOptimumMatchesGLPK(t *testing.T) {
 		seed      uint64
 		dropFixed float64 // 0: mipProblem's price
 	}{{50, 11, 0}, {100, 12, 0}, {200, 13, 0}, {50, 14, 2000}, {120, 15, 1000}} {
-		p, s := mipProblem(tc.n, tc.seed)
+		p := mipProblem(tc.n, tc.seed)
 		if tc.dropFixed > 0 {
-			p.Costs.DropFixed = tc.dropFixed
+			p.Design.Costs.DropFixed = tc.dropFixed
 		}
 		lp := filepath.Join(dir, "plan"+strconv.Itoa(tc.n)+".lp")
 		var buf bytes.Buffer
-		if err := WriteLP(&buf, p, s); err != nil {
+		if err := WriteLP(&buf, p); err != nil {
 			t.Fatal(err)
 		}
 		if err := os.WriteFile(lp, buf.Bytes(), 0o644); err != nil {
@@ -99,7 +95,7 @@ func TestOptimumMatchesGLPK(t *testing.T) {
 		t0 := time.Now()
 		want := glpsolObjective(t, lp)
 		tg := time.Since(t0)
-		res, err := Optimize(p, s)
+		res, err := Optimize(p)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -131,9 +127,9 @@ func TestBenchPlanModel(t *testing.T) {
 	if *benchPlanOut == "" {
 		t.Skip("run by scripts/bench-plan.sh with -benchplan.out")
 	}
-	p, s := mipProblem(*benchPlanN, 400)
+	p := mipProblem(*benchPlanN, 400)
 	var buf bytes.Buffer
-	if err := WriteLP(&buf, p, s); err != nil {
+	if err := WriteLP(&buf, p); err != nil {
 		t.Fatal(err)
 	}
 	if err := os.WriteFile(filepath.Join(*benchPlanOut, "model.lp"), buf.Bytes(), 0o644); err != nil {
@@ -144,7 +140,7 @@ func TestBenchPlanModel(t *testing.T) {
 	for r := 0; r < max(1, *benchPlanReps); r++ {
 		t0 := time.Now()
 		var err error
-		if res, err = Optimize(p, s); err != nil {
+		if res, err = Optimize(p); err != nil {
 			t.Fatal(err)
 		}
 		best = min(best, time.Since(t0))

@@ -31,13 +31,14 @@ func formatPlan(res *Result) []byte {
 	t := res.Totals
 	fmt.Fprintf(&b, "totals drops %d cut %.1f fill %.1f earthwork %.0f drops %.0f total %.0f\n", t.DropCount, t.CutVolume, t.FillVolume,
 		t.EarthworkCost, t.DropCost, t.TotalCost)
-	bt := res.Baseline.Totals
-	fmt.Fprintf(&b, "baseline drops %d total %.0f feasible %v\n", bt.DropCount, bt.TotalCost, res.Baseline.Feasible)
+	for _, bl := range res.Baselines() {
+		fmt.Fprintf(&b, "baseline %s drops %d total %.0f feasible %v\n", bl.Method, bl.Totals.DropCount, bl.Totals.TotalCost, bl.Feasible)
+	}
 	return b.Bytes()
 }
 
 func TestPlanGolden(t *testing.T) {
-	res, err := Optimize(testProblem(80, 5), nil)
+	res, err := Optimize(testProblem(80, 5))
 	if err != nil {
 		t.Fatal(err)
 	}

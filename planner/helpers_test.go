@@ -4,6 +4,7 @@ import (
 	"math"
 	"math/rand/v2"
 
+	"canalstep/planner/earthwork"
 	"canalstep/planner/hydraulics"
 )
 
@@ -27,10 +28,56 @@ func terrain(n int, seed uint64) (c, g []float64) {
 	return c, g
 }
 
-// testProblem is a small earth canal (1 m³/s, 1 m bed, 1.5:1 sides,
-// n = 0.025, 0.3–0.9 m/s) on synthetic ground with three drop heights.
+// testDesign is a small earth canal (1 m³/s, 1 m bed, 1.5:1 sides,
+// n = 0.025, 0.3–0.9 m/s) with three drop heights and the defaults.
+func testDesign() Design {
+	d := DefaultDesign()
+	d.Flow, d.Section, d.Roughness = 1, hydraulics.Section{BottomWidth: 1, SideSlope: 1.5}, 0.025
+	d.MaxVelocity, d.MinVelocity = 0.9, 0.3
+	d.DropHeights = []float64{0.5, 1, 1.5}
+	return d
+}
+
+// testProblem is testDesign on n stations of synthetic ground.
 func testProblem(n int, seed uint64) Problem {
 	c, g := terrain(n, seed)
-	return Problem{Chainage: c, Ground: g, Flow: 1, Section: hydraulics.Section{BottomWidth: 1, SideSlope: 1.5},
-		Roughness: 0.025, MaxVelocity: 0.9, MinVelocity: 0.3, DropHeights: []float64{0.5, 1, 1.5}}
+	return Problem{Stations: LevelProfile(c, g), Design: testDesign()}
+}
+
+// chainages and grounds read a problem's profile back.
+func chainages(p Problem) []float64 {
+	out := make([]float64, len(p.Stations))
+	for i, s := range p.Stations {
+		out[i] = s.Chainage
+	}
+	return out
+}
+
+func grounds(p Problem) []float64 {
+	out := make([]float64, len(p.Stations))
+	for i, s := range p.Stations {
+		out[i] = s.Ground
+	}
+	return out
+}
+
+// setChainages moves the stations of p to the given chainages (m).
+func setChainages(p *Problem, c ...float64) {
+	for i := range c {
+		p.Stations[i].Chainage = c[i]
+	}
+}
+
+// linearDesign is the single-grade case that WriteLP models: a rectangular
+// lined canal without banks (2 m bed, vertical walls, no bank top or outer
+// slopes: areas linear in depth), 0.5 m³/s, n = 0.015, 0.6–2.0 m/s, no
+// waste or borrow price. Prices are illustrative (no source).
+func linearDesign() Design {
+	d := DefaultDesign()
+	d.Flow, d.Section, d.Roughness = 0.5, hydraulics.Section{BottomWidth: 2}, 0.015
+	d.MaxVelocity, d.MinVelocity = 2.0, 0.6
+	d.BankTopWidth, d.OuterSlope, d.CutSlope = 0, 0, 0
+	d.MinReach, d.TransitionLength = 5, ptr(1)
+	d.Costs = earthwork.Costs{Cut: 4, Fill: 6, DropFixed: 300, DropPerMetre: 200}
+	return d
 }

@@ -7,6 +7,8 @@ import (
 	"math"
 	"strconv"
 	"strings"
+
+	"canalstep/planner/earthwork"
 )
 
 // WriteLP writes the single-grade problem p as a mixed-integer model in
@@ -34,8 +36,8 @@ import (
 // count N_i (see the comment in the code): they cut off fractional
 // solutions only, so the integer optimum is the same, and they let
 // branch-and-bound solvers finish in seconds instead of hours.
-func WriteLP(w io.Writer, p Problem, s *Settings) error {
-	q, err := prepare(p, s)
+func WriteLP(w io.Writer, p Problem) error {
+	q, err := prepare(p)
 	if err != nil {
 		return err
 	}
@@ -45,15 +47,17 @@ func WriteLP(w io.Writer, p Problem, s *Settings) error {
 		return fmt.Errorf("%w: the MIP model takes one grade and one drop height (got %d and %d)", ErrInput, len(q.grades), len(q.heights))
 	case t.SideSlope != 0 || t.BankTopWidth != 0 || t.OuterSlope != 0 || t.CutSlope != 0:
 		return fmt.Errorf("%w: the MIP model needs a template with linear areas (all slopes and bank-top widths zero)", ErrInput)
-	case q.costs.Waste != 0 || q.costs.Borrow != 0:
+	case q.d.Costs.Waste != 0 || q.d.Costs.Borrow != 0:
 		return fmt.Errorf("%w: the MIP model has no waste or borrow price", ErrInput)
-	case q.s.Volume != AverageEndArea:
+	case q.d.Volume != earthwork.AverageEndArea:
 		return fmt.Errorf("%w: the MIP model uses average end areas", ErrInput)
-	case len(p.FixedInverts) > 0 || len(p.MinWaterLevels) > 0 || p.EndInvert != nil:
+	case len(q.fixedAt) > 0 || len(q.minWLAt) > 0 || q.d.EndInvert != nil || len(q.d.Command) > 0:
 		return fmt.Errorf("%w: the MIP model takes no controls besides cut and fill limits", ErrInput)
+	case q.cross:
+		return fmt.Errorf("%w: the MIP model takes level ground", ErrInput)
 	}
 	k := q.core()
-	c, g := q.p.Chainage, q.p.Ground
+	c, g := q.c, q.g
 	n := len(c)
 	b := t.BedWidth
 	h := q.heights[0]
@@ -79,12 +83,12 @@ func WriteLP(w io.Writer, p Problem, s *Settings) error {
 	}
 	for i := 1; i < n; i++ {
 		l := c[i] - c[i-1]
-		put(term(l/2*b*q.costs.Cut, fmt.Sprintf("u%d", i-1)))
-		put(term(l/2*b*q.costs.Fill, fmt.Sprintf("v%d", i-1)))
-		put(term(l/2*b*q.costs.Cut, fmt.Sprintf("p%d", i)))
-		put(term(l/2*b*q.costs.Fill, fmt.Sprintf("q%d", i)))
+		put(term(l/2*b*q.d.Costs.Cut, fmt.Sprintf("u%d", i-1)))
+		put(term(l/2*b*q.d.Costs.Fill, fmt.Sprintf("v%d", i-1)))
+		put(term(l/2*b*q.d.Costs.Cut, fmt.Sprintf("p%d", i)))
+		put(term(l/2*b*q.d.Costs.Fill, fmt.Sprintf("q%d", i)))
 	}
-	dc := q.costs.Drop(h)
+	dc := q.d.Costs.Drop(h)
 	for j := 0; j < n; j++ {
 		if arrive[j] >= 0 {
 			put(term(dc, fmt.Sprintf("d%d", j)))
@@ -103,8 +107,8 @@ func WriteLP(w io.Writer, p Problem, s *Settings) error {
 			fmt.Fprintf(bw, " bed%d: z%d - z%d%s = %s\n", i, i, i-1, drop(i, h), num(-sl*(c[i]-c[i-1])))
 			fmt.Fprintf(bw, " cutup%d: p%d + z%d%s >= %s\n", i, i, i, drop(i, h), num(g[i]))
 			fmt.Fprintf(bw, " fillup%d: q%d - z%d%s >= %s\n", i, i, i, drop(i, -h), num(-g[i]))
-			fmt.Fprintf(bw, " lowup%d: z%d%s >= %s\n", i, i, drop(i, h), num(g[i]-q.maxCut))
-			fmt.Fprintf(bw, " highup%d: z%d%s <= %s\n", i, i, drop(i, h), num(g[i]+q.maxFill))
+			fmt.Fprintf(bw, " lowup%d: z%d%s >= %s\n", i, i, drop(i, h), num(g[i]-q.d.MaxCutDepth))
+			fmt.Fprintf(bw, " highup%d: z%d%s <= %s\n", i, i, drop(i, h), num(g[i]+q.d.MaxFillHeight))
 		}
 		fmt.Fprintf(bw, " cut%d: u%d + z%d >= %s\n", i, i, i, num(g[i]))
 		fmt.Fprintf(bw, " fill%d: v%d - z%d >= %s\n", i, i, i, num(-g[i]))
@@ -137,15 +141,15 @@ func WriteLP(w io.Writer, p Problem, s *Settings) error {
 	secant := func(name, u, v, nv string, d0 float64) {
 		cf := func(m float64) float64 {
 			if d := d0 + h*m; d > 0 {
-				return q.costs.Cut * d
+				return q.d.Costs.Cut * d
 			} else {
-				return -q.costs.Fill * d
+				return -q.d.Costs.Fill * d
 			}
 		}
 		k := math.Floor(-d0 / h)
 		f0, f1 := cf(k), cf(k+1)
 		// Cut·u + Fill·v − (f1 − f0)·N ≥ f0 − (f1 − f0)·k
-		fmt.Fprintf(bw, " %s: %s %s + %s %s%s >= %s\n", name, num(q.costs.Cut), u, num(q.costs.Fill), v, term(-(f1-f0), nv), num(f0-(f1-f0)*k))
+		fmt.Fprintf(bw, " %s: %s %s + %s %s%s >= %s\n", name, num(q.d.Costs.Cut), u, num(q.d.Costs.Fill), v, term(-(f1-f0), nv), num(f0-(f1-f0)*k))
 	}
 	for i := 0; i < n; i++ {
 		d0 := g[i] - q.z0 + sl*(c[i]-c[0])
@@ -156,7 +160,7 @@ func WriteLP(w io.Writer, p Problem, s *Settings) error {
 	}
 	fmt.Fprintln(bw, "Bounds")
 	for i := 0; i < n; i++ {
-		fmt.Fprintf(bw, " %s <= z%d <= %s\n", num(g[i]-q.maxCut), i, num(g[i]+q.maxFill))
+		fmt.Fprintf(bw, " %s <= z%d <= %s\n", num(g[i]-q.d.MaxCutDepth), i, num(g[i]+q.d.MaxFillHeight))
 	}
 	for i := 0; i < n; i++ {
 		fmt.Fprintf(bw, " N%d >= 0\n", i)
