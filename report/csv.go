@@ -6,37 +6,34 @@ import (
 	"math"
 	"strconv"
 	"strings"
+
+	"canalstep/alignment"
+	"canalstep/report/units"
 )
 
-// GroundRow is one station of a ground profile. Chainage and Ground are in
-// metres; X and Y are in the DEM's CRS units; Lon and Lat are WGS 84 degrees.
-type GroundRow struct {
-	Station  string
-	Chainage float64
-	X, Y     float64
-	Lon, Lat float64
-	Ground   float64
-}
-
-// WriteGroundCSV writes a ground profile as CSV with the header
-// station,chainage,x,y,lon,lat,ground. Chainage and ground are printed in u's
-// length unit to the millimetre (0.001 ft in US units), x and y to the
-// millimetre of the DEM's CRS unit, lon and lat to 1e-8 degree (about 1 mm).
-// No field needs CSV quoting (station labels are digits, '+', '-' and '.'),
-// so rows are formatted straight into one buffer: profiles run to hundreds of
-// thousands of stations.
-func WriteGroundCSV(w io.Writer, rows []GroundRow, u Units) error {
+// WriteGroundCSV writes a ground profile as CSV: station, chainage,
+// easting and northing in the work CRS (the DEM's projected CRS, or the
+// local transverse Mercator of a geographic DEM; to the millimetre),
+// longitude and latitude (1e-8 degree, about 1 mm) and ground. Chainage and
+// ground are in u's length unit (to 0.001), and the header says which:
+// station,chainage_m,easting,northing,lon,lat,ground_m. No field needs CSV
+// quoting (station labels are digits, '+', '-' and '.'), so rows are
+// formatted straight into one buffer: profiles run to hundreds of thousands
+// of stations.
+func WriteGroundCSV(w io.Writer, p *alignment.Profile, u Units) error {
 	b := make([]byte, 0, 64*1024)
-	b = append(b, "station,chainage,x,y,lon,lat,ground\n"...)
-	for _, r := range rows {
-		if strings.ContainsAny(r.Station, ",\"\n\r") {
-			return fmt.Errorf("station label %q cannot be written unquoted", r.Station)
+	b = append(b, "station,"+u.Column("chainage", units.Length)+",easting,northing,lon,lat,"+u.Column("ground", units.Length)+"\n"...)
+	for i := range p.Stations {
+		s := &p.Stations[i]
+		label := u.Station(s.Chainage)
+		if strings.ContainsAny(label, ",\"\n\r") {
+			return fmt.Errorf("station label %q cannot be written unquoted", label)
 		}
-		b = append(b, r.Station...)
+		b = append(b, label...)
 		for _, f := range [...]struct {
 			v    float64
 			prec int
-		}{{u.Length(r.Chainage), 3}, {r.X, 3}, {r.Y, 3}, {r.Lon, 8}, {r.Lat, 8}, {u.Length(r.Ground), 3}} {
+		}{{u.Length(s.Chainage), 3}, {s.WorkX, 3}, {s.WorkY, 3}, {s.Lon, 8}, {s.Lat, 8}, {u.Length(s.Ground), 3}} {
 			b = append(b, ',')
 			b = appendFixed(b, f.v, f.prec)
 		}

@@ -3,65 +3,71 @@ package report
 import (
 	"encoding/csv"
 	"encoding/json"
-	"fmt"
 	"io"
 	"strconv"
 	"strings"
 
-	"canalstep/alignment"
 	"canalstep/planner"
+	"canalstep/report/units"
 )
-
-// Velocity converts a velocity in m/s to the output unit (ft/s in US units).
-func (u Units) Velocity(ms float64) float64 { return u.Length(ms) }
-
-// VelocityUnit is the symbol of the output velocity unit.
-func (u Units) VelocityUnit() string { return u.LengthUnit() + "/s" }
 
 // StationLabel is the station label of a chainage (m) in u's notation:
 // 1+250.00 (km+m), or 12+50.00 (100-ft stations) in US units.
-func StationLabel(chainageM float64, u Units) string {
-	return alignment.FormatStation(chainageM, u == US)
+func StationLabel(chainageM float64, u Units) string { return u.Station(chainageM) }
+
+// column is one column of a table writer: its name, quantity and decimals.
+type column struct {
+	name string
+	q    units.Quantity
+	prec int
 }
 
-// checkStations panics when the plan and the stations do not match: both
-// come from the same job, so a mismatch is a programmer error.
-func checkStations(st []alignment.Station, p *planner.Plan) {
-	if len(st) != len(p.Stations) {
-		panic(fmt.Sprintf("report: %d stations but a plan of %d", len(st), len(p.Stations)))
+func header(cols []column, u Units) []string {
+	out := make([]string, len(cols))
+	for i, c := range cols {
+		out[i] = u.Column(c.name, c.q)
 	}
+	return out
 }
 
-// StationColumns is the header of stations.csv.
-var stationColumns = []string{"station", "chainage", "x", "y", "ground", "invert", "invert_downstream",
-	"water_surface", "top_of_bank", "depth", "velocity", "grade", "cut_depth", "fill_height",
-	"cut_area", "fill_area", "cum_cut", "cum_fill"}
+// stationColumns are the columns of stations.csv after station and
+// chainage; easting and northing are in the work CRS (see WriteStationsCSV).
+var stationColumns = []column{
+	{"chainage", units.Length, 3}, {"easting", units.Ratio, 3}, {"northing", units.Ratio, 3},
+	{"lon", units.Ratio, 8}, {"lat", units.Ratio, 8},
+	{"ground", units.Length, 3}, {"invert", units.Length, 3}, {"invert_downstream", units.Length, 3},
+	{"water_surface", units.Length, 3}, {"top_of_bank", units.Length, 3}, {"depth", units.Length, 3},
+	{"velocity", units.Velocity, 3}, {"grade", units.Ratio, 7},
+	{"cut_depth", units.Length, 3}, {"fill_height", units.Length, 3}, {"margin", units.Length, 3},
+	{"cut_area", units.Area, 3}, {"fill_area", units.Area, 3},
+	{"cum_cut", units.Volume, 1}, {"cum_fill", units.Volume, 1},
+	{"catch_left", units.Length, 3}, {"catch_right", units.Length, 3},
+}
 
 // WriteStationsCSV writes the station list of a plan: one row per station
-// with its label, chainage, coordinates (DEM CRS), ground, invert (upstream
-// side; invert_downstream differs at a drop), water surface and velocity from
-// the water-surface profile, top of bank, cut and fill. Lengths, areas,
-// volumes and velocities are in u's units (elevations and lengths to the
-// millimetre, 0.001 ft in US units); grade is m/m (dimensionless).
-func WriteStationsCSV(w io.Writer, st []alignment.Station, p *planner.Plan, u Units) error {
-	checkStations(st, p)
+// with its label, chainage, easting and northing in the work CRS (the
+// DEM's projected CRS, or the local transverse Mercator summary.json names
+// for a geographic DEM; to the millimetre), longitude and latitude (1e-8°),
+// ground, invert (upstream side; invert_downstream differs at a drop),
+// water surface and velocity from the water-surface profile, top of bank,
+// grade (m/m), cut depth, fill height, margin (water surface − ground),
+// cut and fill areas and cumulative volumes, and the catch-point offsets
+// (negative left, looking downstream). Column names carry the unit.
+func WriteStationsCSV(w io.Writer, p *planner.Plan, u Units) error {
 	cw := csv.NewWriter(w)
-	if err := cw.Write(stationColumns); err != nil {
+	if err := cw.Write(append([]string{"station"}, header(stationColumns, u)...)); err != nil {
 		return err
 	}
-	rec := make([]string, len(stationColumns))
-	for i, s := range p.Stations {
-		L := func(v float64) string { return fixed(u.Length(v), 3) }
-		rec[0] = StationLabel(s.Chainage, u)
-		rec[1] = L(s.Chainage)
-		rec[2], rec[3] = fixed(st[i].X, 3), fixed(st[i].Y, 3)
-		rec[4], rec[5], rec[6] = L(s.Ground), L(s.Invert), L(s.InvertDown)
-		rec[7], rec[8], rec[9] = L(s.WaterSurface), L(s.TopOfBank), L(s.Depth)
-		rec[10] = fixed(u.Velocity(s.Velocity), 3)
-		rec[11] = fixed(s.Grade, 6)
-		rec[12], rec[13] = L(s.CutDepth), L(s.FillHeight)
-		rec[14], rec[15] = fixed(u.Area(s.CutArea), 3), fixed(u.Area(s.FillArea), 3)
-		rec[16], rec[17] = fixed(u.Volume(s.CumCut), 1), fixed(u.Volume(s.CumFill), 1)
+	rec := make([]string, 1+len(stationColumns))
+	for i := range p.Stations {
+		s := &p.Stations[i]
+		vals := []float64{s.Chainage, s.WorkX, s.WorkY, s.Lon, s.Lat, s.Ground, s.Invert, s.InvertDown,
+			s.WaterSurface, s.TopOfBank, s.Depth, s.Velocity, s.Grade, s.CutDepth, s.FillHeight, s.Margin(),
+			s.CutArea, s.FillArea, s.CumCut, s.CumFill, s.CatchLeft.Offset, s.CatchRight.Offset}
+		rec[0] = u.Station(s.Chainage)
+		for k, c := range stationColumns {
+			rec[k+1] = fixed(u.FromSI(c.q, vals[k]), c.prec)
+		}
 		if err := cw.Write(rec); err != nil {
 			return err
 		}
@@ -70,38 +76,36 @@ func WriteStationsCSV(w io.Writer, st []alignment.Station, p *planner.Plan, u Un
 	return cw.Error()
 }
 
-var dropColumns = []string{"station", "chainage", "x", "y", "height", "upstream_invert", "crest_level",
-	"crest_raise", "basin_floor", "basin_depression", "downstream_invert", "basin_length", "end_sill", "jump_state", "jump_states_checked"}
+var dropColumns = []column{
+	{"chainage", units.Length, 3}, {"easting", units.Ratio, 3}, {"northing", units.Ratio, 3},
+	{"height", units.Length, 3}, {"upstream_invert", units.Length, 3}, {"crest_level", units.Length, 3},
+	{"crest_raise", units.Length, 3}, {"basin_floor", units.Length, 3}, {"basin_depression", units.Length, 3},
+	{"downstream_invert", units.Length, 3}, {"basin_length", units.Length, 3}, {"basin_width", units.Length, 3},
+	{"end_sill", units.Length, 3}, {"wall_height", units.Length, 3}, {"transition_length", units.Length, 3},
+}
 
 // WriteDropsCSV writes one row per drop structure: station, chainage,
-// coordinates (DEM CRS), height (bed fall), upstream invert, crest level and
-// raise, basin floor and its depression below the downstream bed, downstream
-// invert, basin length, end sill height, the jump state at the design flow
-// and the jump state at every checked flow ("25%:drowned;50%:in_basin;...",
-// flows as percentages of the design flow). Lengths are in u's unit to the
-// millimetre.
-func WriteDropsCSV(w io.Writer, st []alignment.Station, r *planner.Result, u Units) error {
-	p := &r.Plan
-	checkStations(st, p)
+// easting and northing (work CRS), height (bed fall), upstream invert,
+// crest level and raise, basin floor and its depression below the
+// downstream bed, downstream invert, basin length and width, end sill
+// height, side-wall height, outlet transition length, the jump state at the
+// design flow and at every checked flow ("25%:drowned;50%:in_basin;...",
+// flows as percentages of the design flow). Column names carry the unit.
+func WriteDropsCSV(w io.Writer, r *planner.Result, u Units) error {
 	cw := csv.NewWriter(w)
-	if err := cw.Write(dropColumns); err != nil {
+	h := append([]string{"station"}, header(dropColumns, u)...)
+	if err := cw.Write(append(h, "jump_state", "jump_states_checked")); err != nil {
 		return err
 	}
-	rec := make([]string, len(dropColumns))
-	for _, d := range p.Drops {
-		L := func(v float64) string { return fixed(u.Length(v), 3) }
-		s := st[d.Station]
-		rec[0], rec[1] = StationLabel(d.Chainage, u), L(d.Chainage)
-		rec[2], rec[3] = fixed(s.X, 3), fixed(s.Y, 3)
-		rec[4], rec[5], rec[6], rec[7] = L(d.Height), L(d.UpstreamInvert), L(d.CrestLevel), L(d.CrestRaise)
-		rec[8], rec[9], rec[10] = L(d.BasinFloor), L(d.BasinDepression), L(d.DownstreamInvert)
-		rec[11], rec[12] = L(d.BasinLength), L(d.EndSill)
-		rec[13] = string(d.JumpState)
-		states := make([]string, len(d.Checks))
-		for k, c := range d.Checks {
-			states[k] = strconv.FormatFloat(roundTo(100*c.Q/r.Design.Flow, 1), 'f', -1, 64) + "%:" + string(c.JumpState)
+	for _, d := range r.Drops {
+		s := &r.Stations[d.Station]
+		vals := []float64{d.Chainage, s.WorkX, s.WorkY, d.Height, d.UpstreamInvert, d.CrestLevel, d.CrestRaise,
+			d.BasinFloor, d.BasinDepression, d.DownstreamInvert, d.BasinLength, d.BasinWidth, d.EndSill, d.WallHeight, d.TransitionLength}
+		rec := []string{u.Station(d.Chainage)}
+		for k, c := range dropColumns {
+			rec = append(rec, fixed(u.FromSI(c.q, vals[k]), c.prec))
 		}
-		rec[14] = strings.Join(states, ";")
+		rec = append(rec, string(d.JumpState), jumpStates(d, r.Record.Flow))
 		if err := cw.Write(rec); err != nil {
 			return err
 		}
@@ -110,75 +114,111 @@ func WriteDropsCSV(w io.Writer, st []alignment.Station, r *planner.Result, u Uni
 	return cw.Error()
 }
 
-// Summary is summary.json: the design inputs and section results, the
-// plan's totals, its warnings and the even-spacing baseline on the same
-// ground. It is always in SI units (m, m², m³, m/s, m³/s), whatever
-// --units says, so that programs read one unit system; costs are in the
-// currency of the unit prices.
+// jumpStates lists a drop's jump state at every checked flow.
+func jumpStates(d planner.DropResult, flow float64) string {
+	states := make([]string, len(d.Checks))
+	for k, c := range d.Checks {
+		states[k] = strconv.FormatFloat(roundTo(100*c.Q/flow, 1), 'f', -1, 64) + "%:" + string(c.JumpState)
+	}
+	return strings.Join(states, ";")
+}
+
+// Summary is summary.json: the design as planned and the section results,
+// the plan's totals, its findings, how it commands the land, both baselines
+// and the saving against the best feasible one. It is always in SI units
+// (m, m², m³, m/s, m³/s), whatever --units says, so that programs read one
+// unit system; costs are in the currency of the unit prices.
 type Summary struct {
-	Alignment string           `json:"alignment"`
-	Units     map[string]any   `json:"units"`
-	Status    string           `json:"status"`
-	Design    planner.Design   `json:"design"`
-	Costs     planner.Costs    `json:"unit_costs"`
-	Template  planner.Template `json:"template"`
+	Alignment string         `json:"alignment"`
+	Units     map[string]any `json:"units"`
+	Status    string         `json:"status"`
+	Design    planner.Record `json:"design"`
+	Costs     any            `json:"unit_costs"`
+	Template  any            `json:"template"`
 	planner.Totals
-	Length   float64         `json:"length"` // m
-	Stations int             `json:"stations"`
-	Warnings []string        `json:"warnings"`
-	Baseline BaselineSummary `json:"baseline"`
-	// Saving is the baseline's total cost minus the plan's, and the same as
-	// a fraction of the baseline's.
+	Length    float64           `json:"length"` // m
+	Stations  int               `json:"stations"`
+	Command   planner.Command   `json:"command"`
+	Warnings  []FindingJSON     `json:"warnings"`
+	Conflicts []FindingJSON     `json:"conflicts,omitempty"`
+	Baselines []BaselineSummary `json:"baselines"`
+	// Saving is the best feasible baseline's total cost minus the plan's,
+	// SavingFraction the same as a fraction of that baseline's cost, and
+	// SavingAgainst its method; all zero and "" when no baseline is
+	// feasible: no saving is stated against an infeasible profile.
 	Saving         float64 `json:"saving"`
 	SavingFraction float64 `json:"saving_fraction"`
+	SavingAgainst  string  `json:"saving_against"`
 	Caution        string  `json:"caution"`
 }
 
-// BaselineSummary is the even-spacing method's figures in Summary.
+// FindingJSON is a typed finding with its SI wording.
+type FindingJSON struct {
+	Finding any    `json:"finding"`
+	Text    string `json:"text"`
+}
+
+// BaselineSummary is one baseline's figures in Summary.
 type BaselineSummary struct {
-	Method             string   `json:"method"`
-	AverageGroundSlope float64  `json:"average_ground_slope"` // m/m
-	Grade              float64  `json:"grade"`                // m/m
-	DropHeight         float64  `json:"drop_height"`          // m
-	Spacing            float64  `json:"drop_spacing"`         // m between drops; 0 without drops
-	Feasible           bool     `json:"feasible"`
-	Violations         []string `json:"violations"`
+	Method             string        `json:"method"`
+	Description        string        `json:"description"`
+	AverageGroundSlope float64       `json:"average_ground_slope"` // m/m
+	Grade              float64       `json:"grade"`                // m/m
+	DropHeight         float64       `json:"drop_height"`          // m
+	Rise               float64       `json:"rise,omitempty"`       // m, by-eye
+	Feasible           bool          `json:"feasible"`
+	Violations         []FindingJSON `json:"violations"`
 	planner.Totals
 }
 
-// NewSummary gathers the summary of one planned alignment.
-func NewSummary(name string, r *planner.Result) Summary {
+// BaselineDescription says in words what a baseline method does.
+func BaselineDescription(method string) string {
+	if method == planner.MethodByEye {
+		return "by eye: the steepest allowed grade, a drop wherever the water surface rises more than the set height above the ground"
+	}
+	return "even spacing: one average ground slope, the steepest allowed grade, drops of one height spaced equally"
+}
+
+// NewSummary gathers the summary of one planned alignment; err is the
+// planner's error for an infeasible plan (nil otherwise).
+func NewSummary(name string, r *planner.Result, err error) Summary {
 	s := Summary{
 		Alignment: name,
 		Units: map[string]any{
 			"length": "m", "area": "m2", "volume": "m3", "velocity": "m/s", "flow": "m3/s",
 			"slope": "m/m", "cost": "currency of the unit costs",
 		},
-		Status:   r.Status.String(),
-		Design:   r.Design,
-		Costs:    r.Design.Costs,
-		Template: r.Design.Template,
-		Totals:   r.Totals,
-		Stations: len(r.Stations),
-		Warnings: append([]string{}, r.Warnings...),
-		Caution:  SafetyNotice,
+		Status:    r.Status.String(),
+		Design:    r.Record,
+		Costs:     r.Record.Costs,
+		Template:  r.Record.Template,
+		Totals:    r.Totals,
+		Stations:  len(r.Stations),
+		Command:   r.Command,
+		Warnings:  []FindingJSON{},
+		Baselines: []BaselineSummary{},
+		Caution:   SafetyNotice,
+	}
+	for _, w := range r.Warnings {
+		s.Warnings = append(s.Warnings, FindingJSON{Finding: w, Text: FormatWarning(w, SI)})
+	}
+	for _, c := range conflicts(err) {
+		s.Conflicts = append(s.Conflicts, FindingJSON{Finding: c, Text: FormatConflict(c, SI)})
 	}
 	if n := len(r.Stations); n > 0 {
 		s.Length = r.Stations[n-1].Chainage - r.Stations[0].Chainage
 	}
-	if b := r.Baseline; b != nil {
-		s.Baseline = BaselineSummary{
-			Method:             "even spacing: one average ground slope, the steepest allowed grade, drops of one height spaced equally",
-			AverageGroundSlope: b.AverageGroundSlope, Grade: b.Grade, DropHeight: b.DropHeight,
-			Feasible: b.Feasible, Violations: append([]string{}, b.Violations...), Totals: b.Totals,
+	for _, b := range r.Baselines() {
+		bs := BaselineSummary{Method: b.Method, Description: BaselineDescription(b.Method),
+			AverageGroundSlope: b.AverageGroundSlope, Grade: b.Grade, DropHeight: b.DropHeight, Rise: b.Rise,
+			Feasible: b.Feasible, Violations: []FindingJSON{}, Totals: b.Totals}
+		for _, v := range b.Violations {
+			bs.Violations = append(bs.Violations, FindingJSON{Finding: v, Text: FormatViolation(v, SI)})
 		}
-		if b.Totals.DropCount > 0 {
-			s.Baseline.Spacing = s.Length / float64(b.Totals.DropCount+1)
-		}
-		s.Saving = b.Totals.TotalCost - r.Totals.TotalCost
-		if b.Totals.TotalCost > 0 {
-			s.SavingFraction = s.Saving / b.Totals.TotalCost
-		}
+		s.Baselines = append(s.Baselines, bs)
+	}
+	if amount, frac, b, ok := r.Saving(); ok {
+		s.Saving, s.SavingFraction, s.SavingAgainst = amount, frac, b.Method
 	}
 	return s
 }
@@ -208,37 +248,35 @@ func roundTo(v float64, prec int) float64 {
 	return f
 }
 
-var alternativeColumns = []string{"alternative", "drop_heights", "status", "drop_count", "cut_volume", "fill_volume",
-	"earthwork_cost", "drop_cost", "total_cost", "max_cut_depth", "max_fill_height", "max_velocity", "min_velocity", "note"}
-
 // WriteAlternativesCSV writes one row per drop-height alternative: its
-// heights (separated by ';' inside the field), status, drop count, volumes,
-// costs and extremes, in u's units; the note says why an alternative has no
-// plan.
+// heights (separated by ',' inside the quoted field), status, drop count,
+// volumes, costs and extremes, in u's units; the note says why an
+// alternative has no plan.
 func WriteAlternativesCSV(w io.Writer, alts []planner.Alternative, u Units) error {
 	cw := csv.NewWriter(w)
-	if err := cw.Write(alternativeColumns); err != nil {
+	head := []string{"alternative", u.Column("drop_heights", units.Length), "status", "drop_count",
+		u.Column("cut_volume", units.Volume), u.Column("fill_volume", units.Volume),
+		"earthwork_cost", "drop_cost", "total_cost", u.Column("max_cut_depth", units.Length),
+		u.Column("max_fill_height", units.Length), u.Column("max_velocity", units.Velocity),
+		u.Column("min_velocity", units.Velocity), "command_share", "note"}
+	if err := cw.Write(head); err != nil {
 		return err
 	}
 	for i, a := range alts {
 		rec := []string{strconv.Itoa(i + 1), AlternativeLabel(a.DropHeights, u)}
 		if a.Result == nil || a.Err != nil {
-			note := "no plan"
-			if a.Err != nil {
-				note = a.Err.Error()
-			}
 			status := "infeasible"
 			if a.Result == nil {
 				status = "invalid"
 			}
-			rec = append(rec, status, "", "", "", "", "", "", "", "", "", "", note)
+			rec = append(rec, status, "", "", "", "", "", "", "", "", "", "", "", ErrorText(a.Err, u))
 		} else {
 			t := a.Result.Totals
 			rec = append(rec, a.Result.Status.String(), strconv.Itoa(t.DropCount),
 				fixed(u.Volume(t.CutVolume), 1), fixed(u.Volume(t.FillVolume), 1),
 				fixed(t.EarthworkCost, 0), fixed(t.DropCost, 0), fixed(t.TotalCost, 0),
 				fixed(u.Length(t.MaxCutDepth), 3), fixed(u.Length(t.MaxFillHeight), 3),
-				fixed(u.Velocity(t.MaxVelocity), 3), fixed(u.Velocity(t.MinVelocity), 3), "")
+				fixed(u.Velocity(t.MaxVelocity), 3), fixed(u.Velocity(t.MinVelocity), 3), fixed(t.CommandShare, 3), "")
 		}
 		if err := cw.Write(rec); err != nil {
 			return err
@@ -250,14 +288,23 @@ func WriteAlternativesCSV(w io.Writer, alts []planner.Alternative, u Units) erro
 
 // NewLongSection maps a planned alignment onto the long-section plot: ground,
 // bed, water surface and top of bank with a vertical step at every drop
-// (of the plan or of the baseline), the even-spacing bed as a comparison line,
-// drops labelled by station, and velocity with its limits in the lower panel.
+// (of the plan or of the best baseline), that baseline's bed as a
+// comparison line, drops labelled by station, and velocity with its limits
+// in the lower panel.
 func NewLongSection(name string, r *planner.Result, u Units) LongSection {
 	ls := LongSection{Name: name, Units: u}
 	n := len(r.Stations)
 	var base []planner.StationResult
-	if r.Baseline != nil && len(r.Baseline.Stations) == n {
-		base = r.Baseline.Stations
+	b := r.BestBaseline()
+	if b == nil {
+		b = r.EvenSpacing
+	}
+	if b != nil && len(b.Stations) == n {
+		base = b.Stations
+		ls.BaselineName = BaselineDescription(b.Method)
+		if i := strings.Index(ls.BaselineName, ":"); i > 0 {
+			ls.BaselineName = ls.BaselineName[:i]
+		}
 	}
 	vel := []float64{}
 	for i, s := range r.Stations {
@@ -292,9 +339,9 @@ func NewLongSection(name string, r *planner.Result, u Units) LongSection {
 		ls.Drops = append(ls.Drops, DropMark{Chainage: d.Chainage, Label: StationLabel(d.Chainage, u),
 			UpstreamInvert: d.UpstreamInvert, DownstreamInvert: d.DownstreamInvert})
 	}
-	lim := []PanelLimit{{Name: "max. velocity", Value: r.Design.MaxVelocity}}
-	if r.Design.MinVelocity > 0 {
-		lim = append(lim, PanelLimit{Name: "min. velocity", Value: r.Design.MinVelocity})
+	lim := []PanelLimit{{Name: "max. velocity", Value: r.Record.MaxVelocity}}
+	if r.Record.MinVelocity > 0 {
+		lim = append(lim, PanelLimit{Name: "min. velocity", Value: r.Record.MinVelocity})
 	}
 	ls.Lower = &LowerPanel{Label: "Velocity", Quantity: PanelVelocity,
 		Series: []PanelSeries{{Name: "velocity (water-surface profile)", Values: vel}}, Limits: lim}

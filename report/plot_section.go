@@ -26,8 +26,10 @@ type LongSection struct {
 	WaterSurface []float64 // design water surface, m; nil to omit
 	TopOfBank    []float64 // top of bank, m; nil to omit
 
-	// BaselineInvert is the bed of the even-spacing method on the same
-	// ground, drawn as a thin comparison line; nil to omit.
+	// BaselineInvert is the bed of a baseline method (BaselineName, e.g.
+	// "by eye") on the same ground, drawn as a thin comparison line; nil to
+	// omit.
+	BaselineName   string
 	BaselineInvert []float64
 
 	Drops []DropMark // drop structures, in any order
@@ -177,7 +179,7 @@ func RenderLongSection(w io.Writer, format string, s LongSection) error {
 		{"ground", ground, lineStyle(groundColor, 1.2)},
 		{"top of bank", bank, lineStyle(bankColor, 0.8, 6, 2, 1, 2)},
 		{"design water surface", water, lineStyle(waterColor, 1, 5, 2.5)},
-		{"even-spacing bed (comparison)", base, lineStyle(baselineColor, 0.6, 3, 2)},
+		{baselineLabel(s.BaselineName), base, lineStyle(baselineColor, 0.6, 3, 2)},
 		{"bed (invert)", bed, lineStyle(bedColor, 1.6)},
 	}
 	for _, l := range lines {
@@ -654,4 +656,12 @@ func (d *dropMarks) Plot(c draw.Canvas, p *plot.Plot) {
 func (d *dropMarks) Thumbnail(c *draw.Canvas) {
 	x := (c.Min.X + c.Max.X) / 2
 	c.StrokeLine2(lineStyle(dropColor, 1.8), x, c.Min.Y, x, c.Max.Y)
+}
+
+// baselineLabel names the comparison bed in the legend.
+func baselineLabel(name string) string {
+	if name == "" {
+		name = "even spacing"
+	}
+	return name + " bed (comparison)"
 }
