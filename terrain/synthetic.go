@@ -224,3 +224,47 @@ func DemoAlignmentsGeoJSON() []byte {
 	}
 	return append(b, '\n')
 }
+
+// DemoOfftake is an offtake of the demo scheme: a turnout beside a branch
+// canal whose water must stand Margin metres above the ground at E, N
+// (metres of [DemoEPSG]).
+type DemoOfftake struct {
+	Name, Alignment string
+	E, N            float64
+	Margin          float64 // m
+}
+
+// demoOfftakes place each turnout beside a demo canal: on the segment
+// after the given vertex, at a fraction of it, offset sideways (m, positive
+// to the left of the flow).
+var demoOfftakes = []struct {
+	name, alignment string
+	vertex          int
+	along, left     float64
+	margin          float64
+}{
+	{"West Branch turnout W1", "West Branch", 3, 0.5, 8, 0.30},
+	{"Middle Branch turnout M1", "Middle Branch", 5, 0.4, 8, 0.30},
+	{"Middle Branch turnout M2", "Middle Branch", 9, 0.6, -8, 0.25},
+	{"East Branch turnout E1", "East Branch", 4, 0.5, 8, 0.30},
+}
+
+// DemoOfftakes returns the demo's turnouts, rounded to the centimetre.
+func DemoOfftakes() []DemoOfftake {
+	routes := map[string]DemoAlignment{}
+	for _, a := range DemoAlignments() {
+		routes[a.Name] = a
+	}
+	var out []DemoOfftake
+	for _, o := range demoOfftakes {
+		v := routes[o.alignment].Vertices
+		a, b := v[o.vertex], v[o.vertex+1]
+		de, dn := b[0]-a[0], b[1]-a[1]
+		l := math.Hypot(de, dn)
+		e := a[0] + o.along*de - o.left*dn/l
+		n := a[1] + o.along*dn + o.left*de/l
+		out = append(out, DemoOfftake{Name: o.name, Alignment: o.alignment,
+			E: math.Round(e*100) / 100, N: math.Round(n*100) / 100, Margin: o.margin})
+	}
+	return out
+}

@@ -8,6 +8,7 @@ import (
 	"path/filepath"
 	"strconv"
 
+	"canalstep/planner/corridor"
 	"canalstep/report"
 	"canalstep/terrain"
 )
@@ -38,9 +39,9 @@ func runDemo(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	fmt.Fprintf(stdout, "DEM: %s\nalignments: %s\ndesign: %s\n", dem, aln, design)
 
 	steps := [][]string{
-		{"profile", "--dem", dem, "--alignment", aln, "--spacing", "10", "--out", *out},
-		{"plan", "--dem", dem, "--alignment", aln, "--design", design, "--out", *out},
-		{"compare", "--dem", dem, "--alignment", aln, "--design", design, "--alternatives", "1.0;1.5;2.0;1.0,1.5,2.0", "--out", *out},
+		{"profile", "--dem", dem, "--alignment", aln, "--spacing", "10", "--out", filepath.Join(*out, "profile")},
+		{"plan", "--dem", dem, "--alignment", aln, "--design", design, "--out", filepath.Join(*out, "plan")},
+		{"compare", "--dem", dem, "--alignment", aln, "--design", design, "--alternatives", "1.0;1.5;2.0;1.0,1.5,2.0", "--out", filepath.Join(*out, "compare")},
 	}
 	for _, s := range steps {
 		if err := ctx.Err(); err != nil {
@@ -51,7 +52,7 @@ func runDemo(ctx context.Context, args []string, stdout, stderr io.Writer) error
 			return fmt.Errorf("demo step %q: %w", s[0], err)
 		}
 	}
-	fmt.Fprintf(stdout, "\nDemo outputs are in %s/<alignment>/.\n", *out)
+	fmt.Fprintf(stdout, "\nDemo outputs are in %s/{profile,plan,compare}/<alignment>/.\n", *out)
 	return nil
 }
 
@@ -70,6 +71,8 @@ max_velocity = 0.9    # m/s, permissible (non-eroding)
 min_velocity = 0.45   # m/s, non-silting
 drop_heights = [0.5, 1.0, 1.5]
 spacing = 10          # m between stations
+ground = "cross-sections"  # earthwork on DEM cross-sections (the 10 m DEM is coarse for auto)
+command_margin = 0.15 # m: the water surface commands the fields beside the canal
 max_cut = 5.0         # m
 max_fill = 2.0        # m
 bank_top_width = 3.0  # m, maintenance track on each bank
@@ -89,11 +92,10 @@ func writeDemoInputs(demPath, alnPath, designPath string, seed uint64) error {
 	if err := terrain.WriteGeoTIFF(demPath, terrain.SyntheticFan(seed)); err != nil {
 		return err
 	}
-	tr, err := terrain.NewTransform(fmt.Sprintf("EPSG:%d", terrain.DemoEPSG), lonLatCRS)
+	tr, err := terrain.SharedTransform(fmt.Sprintf("EPSG:%d", terrain.DemoEPSG), corridor.LonLat)
 	if err != nil {
 		return err
 	}
-	defer tr.Close()
 	var fc geoJSONLines
 	for _, a := range terrain.DemoAlignments() {
 		xs, ys := make([]float64, len(a.Vertices)), make([]float64, len(a.Vertices))
@@ -104,6 +106,13 @@ func writeDemoInputs(demPath, alnPath, designPath string, seed uint64) error {
 			return fmt.Errorf("alignment %q to lon/lat: %w", a.Name, err)
 		}
 		fc.add(a.Name, xs, ys)
+	}
+	for _, o := range terrain.DemoOfftakes() {
+		xs, ys := []float64{o.E}, []float64{o.N}
+		if err := tr.Transform(xs, ys); err != nil {
+			return fmt.Errorf("offtake %q to lon/lat: %w", o.Name, err)
+		}
+		fc.addPoint(o.Name, o.Alignment, o.Margin, xs[0], ys[0])
 	}
 	if err := report.WriteFileAtomic(alnPath, fc.write); err != nil {
 		return err
@@ -132,6 +141,23 @@ func (g *geoJSONLines) add(name string, lon, lat []float64) {
 		b = strconv.AppendFloat(b, lat[i], 'f', 9, 64)
 		b = append(b, ']')
 	}
+	b = append(b, "]}}"...)
+	g.features = append(g.features, string(b))
+}
+
+// addPoint adds an offtake: a Point with its alignment and command margin
+// (m above the ground at the point).
+func (g *geoJSONLines) addPoint(name, alignment string, margin, lon, lat float64) {
+	b := []byte(`{"type":"Feature","properties":{"name":`)
+	b = strconv.AppendQuote(b, name)
+	b = append(b, `,"alignment":`...)
+	b = strconv.AppendQuote(b, alignment)
+	b = append(b, `,"margin":`...)
+	b = strconv.AppendFloat(b, margin, 'f', -1, 64)
+	b = append(b, `},"geometry":{"type":"Point","coordinates":[`...)
+	b = strconv.AppendFloat(b, lon, 'f', 9, 64)
+	b = append(b, ',')
+	b = strconv.AppendFloat(b, lat, 'f', 9, 64)
 	b = append(b, "]}}"...)
 	g.features = append(g.features, string(b))
 }

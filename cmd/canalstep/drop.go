@@ -10,12 +10,14 @@ import (
 
 	"canalstep/planner/hydraulics"
 	"canalstep/report"
+	"canalstep/report/units"
 )
 
 // parseFlows reads a comma-separated list of discharges as fractions of the
 // design flow ("0.25,0.5,1"). Every item must be a finite positive number.
 func parseFlows(s string) ([]float64, error) {
-	return parseNumberList("flows", s, "fractions of the design flow such as 0.25,0.5,1")
+	sys := units.SI
+	return (&designFlags{sys: &sys}).parseList("flows", s, units.Ratio, "check_flow", "0.25,0.5,1")
 }
 
 // dropFlowResult is the outlet check at one discharge.

@@ -2,81 +2,90 @@ package main
 
 import (
 	"errors"
-	"fmt"
 	"math"
-	"os"
 
-	"github.com/paulmach/orb"
 	flag "github.com/spf13/pflag"
 
 	"canalstep/alignment"
-	"canalstep/report"
+	"canalstep/planner/corridor"
+	"canalstep/report/textsafe"
+	"canalstep/report/units"
 	"canalstep/terrain"
 )
 
-// groundFlags are the flags every command that reads a DEM along alignments
-// shares: profile, plan and compare.
+// The adapters where terrain meets the corridor stage.
+var (
+	_ corridor.Ground = (*terrain.DEM)(nil)
+	_ corridor.CRS    = terrainCRS{}
+)
+
+// terrainCRS gives the corridor stage terrain's transforms.
+type terrainCRS struct{}
+
+func (terrainCRS) Transformer(src, dst string) (alignment.Transformer, error) {
+	return terrain.SharedTransform(src, dst)
+}
+
+func (terrainCRS) Describe(def string) (bool, float64, error) {
+	c, err := terrain.CRSInfo(def)
+	return c.Geographic, c.LinearUnitToMetre, err
+}
+
+// groundFlags are the flags every command that reads a DEM along
+// alignments shares: profile, plan, compare and batch.
 type groundFlags struct {
+	sys                          *units.System
 	dem, alignment, alignmentCRS string
-	spacing, startChainage       float64 // in the --units length unit
+	spacing, startChainage       float64 // m (units.Value)
 	zUnits, interp               string
+	minZ, maxZ                   float64 // valid elevations, m
+	curveRadius                  float64 // m; 0: polyline
+}
+
+func newGroundFlags(sys *units.System) *groundFlags {
+	r := terrain.DefaultValidRange()
+	return &groundFlags{sys: sys, spacing: 10, zUnits: "m", interp: "bilinear", minZ: r.Min, maxZ: r.Max}
 }
 
 func (g *groundFlags) register(fs *flag.FlagSet) {
-	fs.StringVar(&g.dem, "dem", "", "DEM raster: any file GDAL opens, including /vsi… paths (required)")
-	fs.StringVar(&g.alignment, "alignment", "", "GeoJSON file with one or more alignments (required)")
+	fs.StringVar(&g.dem, "dem", "", "DEM raster: a GeoTIFF/COG, VRT or other elevation format GDAL reads, including /vsi… paths (required)")
+	fs.StringVar(&g.alignment, "alignment", "", "GeoJSON file with one or more alignments, and offtakes as Point features (required)")
 	fs.StringVar(&g.alignmentCRS, "alignment-crs", "", "CRS of the alignment coordinates, e.g. EPSG:32634 (default: WGS 84 lon/lat as RFC 7946 says, or the file's legacy crs member)")
-	fs.Float64Var(&g.spacing, "spacing", 10, "station spacing along the alignment (m, or ft with --units us)")
-	fs.Float64Var(&g.startChainage, "start-chainage", 0, "chainage of the first point (m, or ft with --units us)")
-	fs.StringVar(&g.zUnits, "z-units", "m", "vertical unit of the DEM values: m, ft or us-ft")
-	fs.StringVar(&g.interp, "interp", "bilinear", "DEM interpolation: bilinear or nearest")
+	L := units.Length
+	fs.Var(units.NewValue(&g.spacing, L, g.sys).Within(0.01, 10000, false), "spacing", "station spacing along the alignment; [0.01, 10000] m")
+	fs.Var(units.NewValue(&g.startChainage, L, g.sys).Within(-1e9, 1e9, false), "start-chainage", "chainage of the first point")
+	fs.StringVar(&g.zUnits, "z-units", g.zUnits, "vertical unit of the DEM values: m, ft or us-ft")
+	fs.StringVar(&g.interp, "interp", g.interp, "DEM interpolation: bilinear or nearest")
+	fs.Var(units.NewValue(&g.minZ, L, g.sys).Within(-11000, 9000, false), "min-elevation", "lowest plausible ground elevation; DEM values below it are treated as missing")
+	fs.Var(units.NewValue(&g.maxZ, L, g.sys).Within(-11000, 9000, false), "max-elevation", "highest plausible ground elevation; DEM values above it are treated as missing")
+	fs.Var(units.NewValue(&g.curveRadius, L, g.sys).Within(0, 1e6, false), "curve-radius", "fit circular curves of this radius at the alignment's vertices (or a feature's curve_radius property); 0: a polyline")
 }
 
-// profile is one alignment stationed and sampled: the input of every
-// per-alignment job.
-type profile struct {
-	name     string              // alignment name as in the file
-	folder   string              // output folder name (alignment.SafeName)
-	stations []alignment.Station // chainage in m, X/Y in the DEM's CRS
-	ground   []float64           // ground elevation at each station, m
+// scheme is the alignment file read and checked.
+type scheme struct {
+	alignment.Scheme
 }
 
-// chainages returns the stations' chainages in metres.
-func (p profile) chainages() []float64 {
-	ch := make([]float64, len(p.stations))
-	for i, s := range p.stations {
-		ch[i] = s.Chainage
-	}
-	return ch
-}
-
-// groundSet is what loadProfiles read: the DEM's description, how many DEM
-// blocks sampling decoded, and one profile per alignment.
-type groundSet struct {
-	info     terrain.Info
-	blocks   int
-	profiles []profile
-}
-
-// loadProfiles reads the alignments and the DEM, stations every alignment and
-// samples the ground. It writes nothing, so a caller that fails on any
-// alignment leaves no output behind. Spacing and start chainage are read in
-// u's length unit.
-func loadProfiles(g groundFlags, u report.Units) (groundSet, error) {
-	if g.dem == "" {
-		return groundSet{}, usagef("--dem is required: give the DEM raster to sample")
-	}
+// readScheme reads the alignment file.
+func (g *groundFlags) readScheme() (scheme, error) {
 	if g.alignment == "" {
-		return groundSet{}, usagef("--alignment is required: give the GeoJSON file with the canal alignment")
+		return scheme{}, usagef("--alignment is required: give the GeoJSON file with the canal alignment")
 	}
-	// Station positions default to round numbers of the unit system:
-	// every 10 m, or every 10 ft with --units us.
-	spacing, start := g.spacing*unitLength(u), g.startChainage*unitLength(u)
-	if !(spacing > 0) || math.IsInf(spacing, 0) {
-		return groundSet{}, usagef("--spacing must be a positive number of %s, got %v", u.LengthUnit(), g.spacing)
+	data, err := readInput(g.alignment, "alignment file", maxAlignmentBytes)
+	if err != nil {
+		return scheme{}, err
 	}
-	if math.IsNaN(start) || math.IsInf(start, 0) {
-		return groundSet{}, usagef("--start-chainage must be a finite number of %s", u.LengthUnit())
+	sc, err := alignment.ReadScheme(data)
+	if err != nil {
+		return scheme{}, inputf("alignment file %s: %v", textsafe.Terminal(g.alignment), err)
+	}
+	return scheme{sc}, nil
+}
+
+// openDEM opens the DEM with the flags' options.
+func (g *groundFlags) openDEM() (*terrain.DEM, error) {
+	if g.dem == "" {
+		return nil, usagef("--dem is required: give the DEM raster to sample")
 	}
 	var method terrain.Method
 	switch g.interp {
@@ -85,160 +94,72 @@ func loadProfiles(g groundFlags, u report.Units) (groundSet, error) {
 	case "nearest":
 		method = terrain.Nearest
 	default:
-		return groundSet{}, usagef("--interp must be bilinear or nearest, got %q", g.interp)
+		return nil, usagef("--interp must be bilinear or nearest, got %q", textsafe.Clip(g.interp, 80))
 	}
 	switch g.zUnits {
 	case "m", "ft", "us-ft":
 	default:
-		return groundSet{}, usagef("--z-units must be m, ft or us-ft, got %q", g.zUnits)
+		return nil, usagef("--z-units must be m, ft or us-ft, got %q", textsafe.Clip(g.zUnits, 80))
 	}
-
-	data, err := os.ReadFile(g.alignment)
+	if !(g.minZ < g.maxZ) {
+		return nil, usagef("--min-elevation must be below --max-elevation")
+	}
+	r := terrain.Range{Min: g.minZ, Max: g.maxZ}
+	dem, err := terrain.Open(g.dem, terrain.Options{ZUnits: g.zUnits, Method: method, ValidRange: &r})
 	if err != nil {
-		return groundSet{}, fmt.Errorf("cannot read the alignment file: %w", err)
-	}
-	aligns, err := alignment.Read(data)
-	if err != nil {
-		return groundSet{}, fmt.Errorf("alignment file %s: %w", g.alignment, err)
-	}
-
-	dem, err := terrain.Open(g.dem, terrain.Options{ZUnits: g.zUnits, Method: method})
-	if err != nil {
-		return groundSet{}, err
-	}
-	defer dem.Close()
-	info := dem.Info()
-
-	profiles := make([]profile, 0, len(aligns))
-	for _, a := range aligns {
-		p, err := loadProfile(dem, info, a, g.alignmentCRS, spacing, start, u)
-		if err != nil {
-			return groundSet{}, err
+		if errors.Is(err, terrain.ErrBadDEM) {
+			return nil, usageError{err}
 		}
-		profiles = append(profiles, p)
+		return nil, err
 	}
-	return groundSet{info: info, blocks: dem.BlocksRead(), profiles: profiles}, nil
+	return dem, nil
 }
 
-// loadProfile stations one alignment and samples the DEM under it.
-// spacing and start are in metres.
-func loadProfile(dem *terrain.DEM, info terrain.Info, a alignment.Alignment, crsFlag string, spacing, start float64, u report.Units) (profile, error) {
-	f, closeFrames, err := framesFor(info, a, crsFlag)
-	if err != nil {
-		return profile{}, fmt.Errorf("alignment %q: %w", a.Name, err)
-	}
-	defer closeFrames()
-	st, err := alignment.Stations(a, f, spacing, start)
-	if err != nil {
-		return profile{}, err
-	}
-	xs, ys := make([]float64, len(st)), make([]float64, len(st))
-	for i, s := range st {
-		xs[i], ys[i] = s.X, s.Y
-	}
-	z := make([]float64, len(st))
-	us := u == report.US
-	if err := dem.Sample(xs, ys, z); err != nil {
-		var out *terrain.OutsideError
-		if errors.As(err, &out) {
-			return profile{}, fmt.Errorf("alignment %q leaves the DEM at %s: extend the DEM or shorten the alignment",
-				a.Name, alignment.Ranges(st, out.Indices, us))
-		}
-		return profile{}, fmt.Errorf("sample the DEM along alignment %q: %w", a.Name, err)
-	}
-	var nodata []int
-	for i, v := range z {
-		if math.IsNaN(v) {
-			nodata = append(nodata, i)
-		}
-	}
-	if len(nodata) > 0 {
-		return profile{}, fmt.Errorf("alignment %q crosses DEM cells without data at %s: fill the gaps (e.g. gdal_fillnodata.py) or move the alignment",
-			a.Name, alignment.Ranges(st, nodata, us))
-	}
-	return profile{name: a.Name, folder: alignment.SafeName(a.Name), stations: st, ground: z}, nil
-}
-
-// lonLatCRS is WGS 84 in lon/lat order, the CRS of RFC 7946 GeoJSON.
-const lonLatCRS = "OGC:CRS84"
-
-// framesFor builds the coordinate frames of one alignment. Chainage is
-// measured in the DEM's CRS when it is projected, else in a transverse
-// Mercator projection centred on the alignment, whose grid distances match
-// the ellipsoid's to a few parts per million over a canal's extent. The returned function releases the transforms.
-func framesFor(info terrain.Info, a alignment.Alignment, crsFlag string) (alignment.Frames, func(), error) {
-	var f alignment.Frames
-	var open []*terrain.Transform
-	closeAll := func() {
-		for _, t := range open {
-			t.Close()
-		}
-	}
-	newT := func(src, dst string) (*terrain.Transform, error) {
-		t, err := terrain.NewTransform(src, dst)
-		if err != nil {
-			return nil, err
-		}
-		open = append(open, t)
-		return t, nil
-	}
-	fail := func(err error) (alignment.Frames, func(), error) {
-		closeAll()
-		return alignment.Frames{}, func() {}, err
-	}
-
-	in := crsFlag
-	if in == "" {
-		in = a.CRS
-	}
-	if in == "" {
-		if !alignment.LooksGeographic(a.Line) {
-			return fail(usagef("coordinates are not WGS 84 lon/lat as RFC 7946 requires; give --alignment-crs EPSG:n for projected coordinates"))
-		}
-		in = lonLatCRS
-	}
-	if _, err := terrain.CRSInfo(in); err != nil {
-		return fail(usagef("alignment CRS: %v; give an EPSG code such as EPSG:32634", err))
-	}
-
-	work := info.CRSWKT
-	f.WorkUnitToMetre = info.LinearUnitToMetre
+// describeDEM turns terrain's description into the corridor's.
+func describeDEM(info terrain.Info) corridor.DEM {
+	gt := info.GeoTransform
+	x0, x1 := gt[0], gt[0]+gt[1]*float64(info.Width)
+	y0, y1 := gt[3], gt[3]+gt[5]*float64(info.Height)
+	cell := info.CellX * info.LinearUnitToMetre
 	if info.Geographic {
-		// Station in a transverse Mercator projection centred on the
-		// alignment (scale 1 on its central meridian), sample back in lon/lat.
-		toLL, err := newT(in, lonLatCRS)
-		if err != nil {
-			return fail(err)
-		}
-		ll := append(orb.LineString(nil), a.Line...)
-		xs, ys := make([]float64, len(ll)), make([]float64, len(ll))
-		for i, p := range ll {
-			xs[i], ys[i] = p[0], p[1]
-		}
-		if err := toLL.Transform(xs, ys); err != nil {
-			return fail(fmt.Errorf("locate the alignment in lon/lat: %w", err))
-		}
-		for i := range ll {
-			ll[i] = orb.Point{xs[i], ys[i]}
-		}
-		def, ok := alignment.LocalTransverseMercator(ll)
-		if !ok {
-			return fail(errors.New("cannot set up a local projection for the alignment; reproject the DEM to a projected CRS"))
-		}
-		work = def
-		f.WorkUnitToMetre = 1
-		if f.WorkToDEM, err = newT(work, info.CRSWKT); err != nil {
-			return fail(err)
-		}
-	} else if !(f.WorkUnitToMetre > 0) {
-		return fail(errors.New("the DEM's CRS has no known linear unit; reproject the DEM to a metre or foot CRS"))
+		cell = info.CellX * 111_320 // degrees of latitude to metres, for the sampling step only (common practice, no source)
 	}
-	var err error
-	if f.ToWork, err = newT(in, work); err != nil {
-		return fail(err)
+	return corridor.DEM{CRS: info.CRSWKT, Geographic: info.Geographic, UnitToMetre: info.LinearUnitToMetre,
+		CellSize: cell, Extent: [4]float64{math.Min(x0, x1), math.Min(y0, y1), math.Max(x0, x1), math.Max(y0, y1)}}
+}
+
+// corridorOptions are the stationing options of the flags.
+func (g *groundFlags) corridorOptions() corridor.Options {
+	return corridor.Options{Spacing: g.spacing, Start: g.startChainage, US: *g.sys == units.US,
+		AlignmentCRS: g.alignmentCRS, CurveRadius: g.curveRadius, MaxOfftakeDistance: maxOfftakeDistance}
+}
+
+// maxOfftakeDistance is how far (m) an offtake may lie from its alignment
+// (common practice, no source: a turnout stands on the canal bank).
+const maxOfftakeDistance = 100.0
+
+// crossStep is the spacing (m) of cross-section samples on a DEM of cell
+// size cell (m): half a cell, between 0.25 and 2 m (common practice, no
+// source: bilinear ground is piecewise quadratic across a cell).
+func crossStep(cell float64) float64 {
+	return math.Min(2, math.Max(0.25, cell/2))
+}
+
+// servedBy returns the offtakes of sc that serve alignment a: those naming
+// it or its corridor, and every offtake when the file has one alignment. An
+// offtake that names no alignment in a file of several is an error.
+func servedBy(sc scheme, a alignment.Alignment) ([]alignment.Offtake, error) {
+	var out []alignment.Offtake
+	for _, o := range sc.Offtakes {
+		switch {
+		case o.Alignment == a.Name || (o.Alignment != "" && o.Alignment == a.Overrides.Corridor):
+			out = append(out, o)
+		case o.Alignment == "" && len(sc.Alignments) == 1:
+			out = append(out, o)
+		case o.Alignment == "":
+			return nil, inputf("offtake %q does not name the alignment it serves and the file has %d alignments; give it an \"alignment\" property",
+				textsafe.Terminal(o.Name), len(sc.Alignments))
+		}
 	}
-	if f.WorkToLonLat, err = newT(work, lonLatCRS); err != nil {
-		return fail(err)
-	}
-	return f, closeAll, nil
+	return out, nil
 }

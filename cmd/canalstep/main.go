@@ -9,14 +9,21 @@ import (
 	"fmt"
 	"os"
 	"os/signal"
+	"syscall"
 )
 
 func main() {
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+	ctx, cancel := context.WithCancelCause(context.Background())
+	sigs := make(chan os.Signal, 1)
+	signal.Notify(sigs, os.Interrupt, syscall.SIGTERM, syscall.SIGHUP)
+	go func() {
+		s := <-sigs
+		cancel(interrupted{s.(syscall.Signal)})
+		signal.Stop(sigs) // a second signal ends the process at once
+	}()
 	err := run(ctx, os.Args[1:], os.Stdout, os.Stderr)
-	stop()
 	if err != nil {
-		fmt.Fprintf(os.Stderr, "canalstep: %v\n", oneLine(err))
+		fmt.Fprintf(os.Stderr, "canalstep: %s\n", oneLine(err))
 	}
 	os.Exit(exitCode(err))
 }

@@ -8,80 +8,115 @@ import (
 	"path/filepath"
 
 	"canalstep/alignment"
+	"canalstep/planner/corridor"
 	"canalstep/report"
+	"canalstep/report/outdir"
+	"canalstep/report/runner"
+	"canalstep/report/textsafe"
+	"canalstep/report/units"
+	"canalstep/terrain"
 )
 
 // runProfile implements `canalstep profile`: the ground long section along
 // each alignment, as ground.csv and ground.png per alignment.
 func runProfile(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+	sys, _, err := preParse(args)
+	if err != nil {
+		return err
+	}
 	fs := newFlagSet("profile", stdout)
-	var g groundFlags
+	g := newGroundFlags(&sys)
 	g.register(fs)
-	out := fs.String("out", "canalstep-out", "output folder; each alignment gets a sub-folder named after it")
-	unitsFlag := fs.String("units", "si", "units of lengths given and printed: si (m) or us (ft)")
+	out := fs.String("out", "canalstep-out", "output folder; each alignment gets a sub-folder named after it, replaced as a whole")
+	fs.String("units", sys.String(), "units of lengths given and printed: si (m) or us (ft)")
+	jobs := fs.Int("jobs", 0, "alignments sampled at once; 0: one per CPU")
+	wait := fs.Bool("wait", false, "wait for another run writing the same --out to finish, instead of refusing")
 	fs.Usage = func() {
 		fmt.Fprintln(stdout, "Usage: canalstep profile --dem DEM --alignment FILE [--spacing 10] [--out DIR]")
 		fmt.Fprintln(stdout, "\nSamples the DEM along each alignment and writes DIR/<name>/ground.csv and ground.png.\n\nFlags:")
 		fs.PrintDefaults()
+		fmt.Fprintf(stdout, "\n%s\n", exitCodeHelp)
 	}
 	if ok, err := parseFlags(fs, args); !ok {
 		return err
 	}
-	u, err := parseUnits(*unitsFlag)
+	sc, err := g.readScheme()
 	if err != nil {
 		return err
 	}
-	set, err := loadProfiles(g, u)
+	dem0, err := g.openDEM()
 	if err != nil {
 		return err
 	}
-	for _, p := range set.profiles {
-		if err := ctx.Err(); err != nil {
-			return err
+	info := dem0.Info()
+	dem := describeDEM(info)
+	dir, err := outdir.Open(ctx, *out, outdir.Options{Wait: *wait})
+	if err != nil {
+		dem0.Close()
+		var busy *outdir.BusyError
+		if errors.As(err, &busy) {
+			return usageError{err}
 		}
-		if err := writeGroundProfile(filepath.Join(*out, p.folder), p, u); err != nil {
-			return err
+		return err
+	}
+	defer dir.Close()
+	n := len(sc.Alignments)
+	profiles := make([]*alignment.Profile, n)
+	errs := make([]error, n)
+	blocks := 0
+	err = runner.Each(ctx, n, *jobs, dem0, g.openDEM, func(i int, d *terrain.DEM) {
+		o := g.corridorOptions()
+		a := sc.Alignments[i]
+		if a.Overrides.CurveRadius != nil {
+			o.CurveRadius = *a.Overrides.CurveRadius
 		}
-		last := p.stations[len(p.stations)-1]
-		lo, hi := minMax(p.ground)
+		c, err := corridor.Build(a, dem, d, terrainCRS{}, o)
+		if err == nil {
+			err = writeFolder(dir, c.Profile.Folder, func(st report.Stager) error { return report.WriteGround(st, c.Profile, sys) })
+		}
+		if err == nil {
+			profiles[i] = c.Profile
+		}
+		errs[i] = err
+	})
+	var names []string
+	failed := 0
+	for i, p := range profiles {
+		a := sc.Alignments[i]
+		names = append(names, alignment.SafeName(a.Name))
+		if errs[i] != nil {
+			failed++
+			fmt.Fprintf(stdout, "%s: FAILED: %s\n", textsafe.Terminal(a.Name), oneLineError(errs[i]))
+			continue
+		}
+		if p == nil {
+			continue
+		}
+		lo, hi := minMax(p.Grounds())
 		fmt.Fprintf(stdout, "%s: %d stations, %s to %s, ground %.2f to %.2f %s -> %s\n",
-			p.name, len(p.stations),
-			alignment.FormatStation(p.stations[0].Chainage, u == report.US),
-			alignment.FormatStation(last.Chainage, u == report.US),
-			u.Length(lo), u.Length(hi), u.LengthUnit(), filepath.Join(*out, p.folder))
+			textsafe.Terminal(p.Name), len(p.Stations), sys.Station(p.Stations[0].Chainage), sys.Station(p.Stations[len(p.Stations)-1].Chainage),
+			sys.Length(lo), sys.Length(hi), sys.LengthUnit(), textsafe.Terminal(filepath.Join(*out, p.Folder)))
 	}
-	fmt.Fprintf(stdout, "DEM %s: %d×%d cells, %s interpolation, %d blocks decoded\n",
-		set.info.Path, set.info.Width, set.info.Height, set.info.Method, set.blocks)
+	_ = blocks
+	fmt.Fprintf(stdout, "DEM %s: %d×%d cells, %s interpolation\n", textsafe.Terminal(info.Path), info.Width, info.Height, info.Method)
+	if err != nil {
+		fmt.Fprintln(stdout, dir.Report(names, true))
+		return err
+	}
+	if failed > 0 {
+		return fmt.Errorf("%d of %d alignments failed; %s", failed, n, dir.Report(names, false))
+	}
 	return nil
 }
 
-// writeGroundProfile writes ground.csv and ground.png of one alignment into
-// dir through a staging folder.
-func writeGroundProfile(dir string, p profile, u report.Units) error {
-	st, err := report.NewStaging(dir)
+// writeFolder stages one output folder, writes it and commits it whole.
+func writeFolder(dir *outdir.Dir, name string, write func(report.Stager) error) error {
+	st, err := dir.Stage(name)
 	if err != nil {
 		return err
 	}
 	defer st.Discard()
-	us := u == report.US
-	rows := make([]report.GroundRow, len(p.stations))
-	for i, s := range p.stations {
-		rows[i] = report.GroundRow{
-			Station: alignment.FormatStation(s.Chainage, us), Chainage: s.Chainage,
-			X: s.X, Y: s.Y, Lon: s.Lon, Lat: s.Lat, Ground: p.ground[i],
-		}
-	}
-	// The plot and the CSV are independent: write them side by side.
-	plotErr := make(chan error, 1)
-	go func() {
-		plotErr <- report.WriteGroundProfile(st.Path("ground.png"), report.GroundProfile{
-			Name: p.name, Chainage: p.chainages(), Ground: p.ground, Units: u,
-		})
-	}()
-	csvErr := report.WriteFileAtomic(st.Path("ground.csv"), func(w io.Writer) error {
-		return report.WriteGroundCSV(w, rows, u)
-	})
-	if err := errors.Join(csvErr, <-plotErr); err != nil {
+	if err := write(st); err != nil {
 		return err
 	}
 	return st.Commit()
@@ -95,3 +130,5 @@ func minMax(vs []float64) (lo, hi float64) {
 	}
 	return lo, hi
 }
+
+var _ units.System

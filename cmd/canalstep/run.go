@@ -5,9 +5,15 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"runtime/debug"
 	"strings"
+	"syscall"
 
 	flag "github.com/spf13/pflag"
+
+	"canalstep/planner"
+	"canalstep/planner/corridor"
+	"canalstep/report/textsafe"
 )
 
 // command is one subcommand of canalstep.
@@ -31,18 +37,41 @@ func commands() []command {
 }
 
 // run parses the subcommand and runs it. It never calls os.Exit and writes only
-// to the writers it is given, so tests call it in-process.
-func run(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+// to the writers it is given, so tests call it in-process. A panic below it
+// is recovered as an internalError (exit status 3, one line, no stack).
+func run(ctx context.Context, args []string, stdout, stderr io.Writer) (err error) {
+	defer func() {
+		if p := recover(); p != nil {
+			err = internalError{fmt.Sprint(p)}
+		}
+	}()
 	if len(args) == 0 || args[0] == "-h" || args[0] == "--help" || args[0] == "help" {
 		usage(stdout)
 		return nil
 	}
+	if args[0] == "--version" || args[0] == "version" {
+		fmt.Fprintf(stdout, "canalstep %s\n", version())
+		return nil
+	}
 	for _, c := range commands() {
 		if c.name == args[0] {
-			return c.run(ctx, args[1:], stdout, stderr)
+			err = c.run(ctx, args[1:], stdout, stderr)
+			if cause := context.Cause(ctx); err != nil && cause != nil && errors.Is(err, context.Canceled) {
+				return cause // interrupted: the signal decides the exit status
+			}
+			return err
 		}
 	}
-	return usagef("unknown command %q; run 'canalstep help' for the list", args[0])
+	return usagef("unknown command %q; run 'canalstep help' for the list", textsafe.Clip(args[0], 80))
+}
+
+// version is the module version of the binary, or "devel" for a build
+// from a work tree.
+func version() string {
+	if bi, ok := debug.ReadBuildInfo(); ok && bi.Main.Version != "" && bi.Main.Version != "(devel)" {
+		return bi.Main.Version
+	}
+	return "devel"
 }
 
 func usage(w io.Writer) {
@@ -52,7 +81,25 @@ func usage(w io.Writer) {
 		fmt.Fprintf(w, "  %-9s %s\n", c.name, c.summary)
 	}
 	fmt.Fprintln(w, "\nRun 'canalstep <command> --help' for the flags of one command.")
+	fmt.Fprintf(w, "\n%s\n", exitCodeHelp)
 }
+
+// exitCodeHelp is the exit-code table, in every --help and the README.
+const exitCodeHelp = `Exit status: 0 success; 1 a design or data failure (an infeasible plan, an alignment that failed);
+2 bad usage or input (a flag, a file, a value out of range); 3 an internal error (please report it);
+130, 143, 129 interrupted by SIGINT, SIGTERM, SIGHUP (finished folders are whole, nothing is half-written).`
+
+// internalError is a recovered panic: a bug, never the user's fault.
+type internalError struct{ what string }
+
+func (e internalError) Error() string {
+	return "internal error: " + textsafe.Clip(e.what, 200) + " (a bug in canalstep; please report it with the command line that caused it)"
+}
+
+// interrupted is the cause of a run stopped by a signal.
+type interrupted struct{ sig syscall.Signal }
+
+func (e interrupted) Error() string { return "interrupted by " + e.sig.String() }
 
 // usageError marks a mistake in the command line: exit status 2.
 type usageError struct{ err error }
@@ -89,21 +136,29 @@ func parseFlags(fs *flag.FlagSet, args []string) (bool, error) {
 	return true, nil
 }
 
-// exitCode maps an error to the process exit status: 0 success, 2 usage
-// error, 1 anything else (failed run or infeasible design).
+// exitCode maps an error to the process exit status (exitCodeHelp).
 func exitCode(err error) int {
 	if err == nil {
 		return 0
 	}
-	var u usageError
-	if errors.As(err, &u) {
+	var (
+		u   usageError
+		ie  internalError
+		sig interrupted
+	)
+	switch {
+	case errors.As(err, &sig):
+		return 128 + int(sig.sig)
+	case errors.As(err, &ie):
+		return 3
+	case errors.As(err, &u), errors.Is(err, planner.ErrInput), errors.Is(err, corridor.ErrInput):
 		return 2
 	}
 	return 1
 }
 
-// oneLine folds an error message onto a single line; the lines of joined
-// errors (one per failed alignment) are separated by "; ".
+// oneLine folds an error message onto a single line with no control or
+// bidi characters; the lines of joined errors are separated by "; ".
 func oneLine(err error) string {
 	var parts []string
 	for _, l := range strings.Split(err.Error(), "\n") {
@@ -111,5 +166,5 @@ func oneLine(err error) string {
 			parts = append(parts, strings.Join(f, " "))
 		}
 	}
-	return strings.Join(parts, "; ")
+	return textsafe.Clip(strings.Join(parts, "; "), 2000)
 }
