@@ -17,6 +17,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"sort"
 
 	"github.com/paulmach/orb"
 
@@ -137,14 +138,15 @@ func Build(a alignment.Alignment, dem DEM, g Ground, crs CRS, o Options) (*Corri
 		}
 	}
 	c := &Corridor{Profile: p, Frames: f, Route: route}
-	if c.Offtakes, err = snap(p, f, g, o); err != nil {
+	if c.Offtakes, err = snap(p, route, f, g, o); err != nil {
 		return nil, err
 	}
 	return c, nil
 }
 
-// snap finds each offtake's nearest station and its command level.
-func snap(p *alignment.Profile, f alignment.Frames, g Ground, o Options) ([]Offtake, error) {
+// snap finds the point of the route nearest each offtake, the station
+// nearest that point, and the offtake's command level.
+func snap(p *alignment.Profile, route *alignment.Route, f alignment.Frames, g Ground, o Options) ([]Offtake, error) {
 	if len(o.Offtakes) == 0 {
 		return nil, nil
 	}
@@ -158,10 +160,6 @@ func snap(p *alignment.Profile, f alignment.Frames, g Ground, o Options) ([]Offt
 			return nil, fmt.Errorf("%w: alignment %q: offtakes to the work CRS: %v", ErrInput, p.Name, err)
 		}
 	}
-	unit := f.WorkUnitToMetre
-	if unit == 0 {
-		unit = 1
-	}
 	out := make([]Offtake, n)
 	dx, dy := append([]float64(nil), xs...), append([]float64(nil), ys...)
 	if f.WorkToDEM != nil {
@@ -172,8 +170,9 @@ func snap(p *alignment.Profile, f alignment.Frames, g Ground, o Options) ([]Offt
 	z := make([]float64, n)
 	_ = g.Sample(dx, dy, z) // a missing ground matters only for a margin, checked below
 	for i, t := range o.Offtakes {
-		k, d := alignment.NearestStation(p.Stations, xs[i], ys[i])
-		d *= unit
+		along, offset := route.Locate(xs[i], ys[i])
+		d := math.Abs(offset)
+		k := nearestChainage(p.Stations, p.Stations[0].Chainage+along)
 		if k < 0 || !(d <= o.MaxOfftakeDistance) {
 			return nil, fmt.Errorf("%w: offtake %q lies %.1f m from alignment %q, more than %.0f m; move it next to the canal or name the alignment it serves",
 				ErrInput, t.Name, d, p.Name, o.MaxOfftakeDistance)
@@ -375,6 +374,22 @@ func sampleSections(p *alignment.Profile, f alignment.Frames, g Ground, idx []in
 }
 
 func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
+
+// nearestChainage returns the index of the station nearest chainage ch (m),
+// or −1 for a NaN chainage.
+func nearestChainage(st []alignment.Station, ch float64) int {
+	if math.IsNaN(ch) || len(st) == 0 {
+		return -1
+	}
+	i := sort.Search(len(st), func(k int) bool { return st[k].Chainage >= ch })
+	switch {
+	case i == len(st):
+		return i - 1
+	case i > 0 && ch-st[i-1].Chainage < st[i].Chainage-ch:
+		return i - 1
+	}
+	return i
+}
 
 func anyNaN(z []float64) bool {
 	for _, v := range z {
