@@ -56,6 +56,7 @@ type prepared struct {
 	minWLAt  map[int]float64 // station → lowest water level (controls and offtakes)
 	wlKind   map[int]Kind    // station → KindMinWaterLevel or KindOfftake
 	margin   []float64       // command margin per station, m; NaN where none
+	raised   float64         // how far the default start invert was raised for the command downstream, m
 	offtakes []offtakeAt
 }
 
@@ -168,6 +169,10 @@ func prepare(p Problem) (*prepared, error) {
 		}
 	}
 
+	// Point controls (below) first: the default start invert looks at them.
+	if err := q.pointControls(); err != nil {
+		return nil, err
+	}
 	// Start invert.
 	if d.StartInvert != nil {
 		q.z0 = *d.StartInvert
@@ -176,6 +181,17 @@ func prepare(p Problem) (*prepared, error) {
 		if m := q.margin[0]; !math.IsNaN(m) {
 			q.z0 += m
 		}
+		// Raised where a lowest water level downstream (a command margin,
+		// a control, an offtake) needs it: the flattest candidate grade from
+		// the start, without drops, must hold every one of them.
+		flat, yf := q.grades[len(q.grades)-1], q.depth[len(q.depth)-1]
+		low := q.z0
+		for i := range q.c {
+			if wl, _, ok := q.lowestWater(i); ok {
+				low = math.Max(low, wl-yf+flat*(q.c[i]-q.c[0]))
+			}
+		}
+		q.raised, q.z0 = low-q.z0, low
 	}
 	if d.StartInvert != nil && (q.z0-q.g[0] > d.MaxFillHeight+1e-9 || q.g[0]-q.z0 > d.MaxCutDepth+1e-9) {
 		return nil, fmt.Errorf("%w: the start invert %.3f m is %.3f m from the ground %.3f m at the first station, outside the maximum cut depth %.2f m and fill height %.2f m",
@@ -194,7 +210,21 @@ func prepare(p Problem) (*prepared, error) {
 			Flags: []string{"--start-invert", "--max-cut"}}}}
 	}
 
-	// Point controls: at most one per station.
+	if d.EndInvert != nil {
+		if lvl, ok := q.fixedAt[n-1]; ok && math.Abs(lvl-*d.EndInvert) > d.Step/2 {
+			return nil, fmt.Errorf("%w: the end invert %.3f m and a fixed invert %.3f m both stand at the last station", ErrInput, *d.EndInvert, lvl)
+		}
+	}
+	if err := q.structures(); err != nil {
+		return nil, err
+	}
+	return q, nil
+}
+
+// pointControls places the fixed inverts, lowest water levels and
+// offtakes at their stations, at most one per station.
+func (q *prepared) pointControls() error {
+	d := &q.d
 	q.fixedAt, q.minWLAt, q.wlKind = map[int]float64{}, map[int]float64{}, map[int]Kind{}
 	taken := map[int]string{}
 	claim := func(i int, what string) error {
@@ -208,14 +238,14 @@ func prepare(p Problem) (*prepared, error) {
 		what := fmt.Sprintf("fixed invert %.3f m", ctl.Level)
 		i, err := q.stationAt(ctl.Chainage, what)
 		if err != nil {
-			return nil, err
+			return err
 		}
 		if err := claim(i, what); err != nil {
-			return nil, err
+			return err
 		}
 		q.fixedAt[i] = ctl.Level
 		if m := q.margin[i]; !math.IsNaN(m) && ctl.Level+q.depth[len(q.depth)-1] < q.g[i]+m-1e-9 {
-			return nil, fmt.Errorf("%w: %s at chainage %.2f m holds the water surface at most %.3f m there, below the command level %.3f m (ground + %.2f m margin); lower the margin there or raise the fixed invert",
+			return fmt.Errorf("%w: %s at chainage %.2f m holds the water surface at most %.3f m there, below the command level %.3f m (ground + %.2f m margin); lower the margin there or raise the fixed invert",
 				ErrInput, what, q.c[i], ctl.Level+q.depth[len(q.depth)-1], q.g[i]+m, m)
 		}
 	}
@@ -232,29 +262,29 @@ func prepare(p Problem) (*prepared, error) {
 	}
 	for _, ctl := range d.MinWaterLevels {
 		if _, err := addWL(ctl.Chainage, ctl.Level, fmt.Sprintf("lowest water level %.3f m", ctl.Level), KindMinWaterLevel); err != nil {
-			return nil, err
+			return err
 		}
 	}
 	for _, o := range d.Offtakes {
 		i, err := addWL(o.Chainage, o.Level, fmt.Sprintf("offtake %q (command level %.3f m)", o.Name, o.Level), KindOfftake)
 		if err != nil {
-			return nil, err
+			return err
 		}
 		q.offtakes = append(q.offtakes, offtakeAt{Offtake: o, station: i})
 	}
-	if d.EndInvert != nil {
-		if lvl, ok := q.fixedAt[n-1]; ok && math.Abs(lvl-*d.EndInvert) > d.Step/2 {
-			return nil, fmt.Errorf("%w: the end invert %.3f m and a fixed invert %.3f m both stand at the last station", ErrInput, *d.EndInvert, lvl)
-		}
-	}
+	return nil
+}
 
-	// Structures: crest width, transition, basin lengths.
+// structures sets the crest width, the transition and the basin lengths.
+func (q *prepared) structures() error {
+	d := &q.d
+	c := hydraulics.SI()
 	q.crest = d.Section.BottomWidth
 	if d.CrestWidth != nil {
 		q.crest = *d.CrestWidth
 	}
 	if !(q.crest > 0) {
-		return nil, fmt.Errorf("%w: drop crest width must be positive (the canal has no bed width; set the crest width)", ErrInput)
+		return fmt.Errorf("%w: drop crest width must be positive (the canal has no bed width; set the crest width)", ErrInput)
 	}
 	if d.TransitionLength != nil {
 		q.transLen = *d.TransitionLength
@@ -269,18 +299,18 @@ func prepare(p Problem) (*prepared, error) {
 			for gi, g := range q.grades {
 				dd, err := hydraulics.DesignDrop(c, q.dropInput(h, g, g))
 				if err != nil {
-					return nil, fmt.Errorf("drop of %.2f m at grade %g (depth %.3f m): %w", h, g, q.depth[gi], err)
+					return fmt.Errorf("drop of %.2f m at grade %g (depth %.3f m): %w", h, g, q.depth[gi], err)
 				}
 				bl = math.Max(bl, dd.BasinLength)
 			}
 		}
 		if !(bl >= 0) || !finite(bl) {
-			return nil, fmt.Errorf("%w: basin length %g m for a %.2f m drop", ErrInput, bl, h)
+			return fmt.Errorf("%w: basin length %g m for a %.2f m drop", ErrInput, bl, h)
 		}
 		q.basin = append(q.basin, bl)
 		q.spacing = append(q.spacing, bl+q.transLen+d.MinReach)
 	}
-	return q, nil
+	return nil
 }
 
 // stationAt returns the station within the control tolerance of chainage

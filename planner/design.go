@@ -39,7 +39,10 @@ type Design struct {
 	// StartInvert is the bed elevation (m) at the first station; nil means
 	// the ground there minus the normal depth at the steepest grade plus
 	// the command margin at the start, so the design water surface starts at
-	// ground level (or the margin above it).
+	// ground level (or the margin above it), raised where a lowest water
+	// level downstream (a command margin, a control, an offtake) needs it so
+	// that the flattest candidate grade without drops could hold it
+	// (Record.StartInvertRaised says by how much).
 	StartInvert *float64
 	// EndInvert ties the bed at the last station to this elevation (m),
 	// within half an elevation step; nil for a free end.

@@ -108,39 +108,43 @@ type Stats struct {
 // Record records the design a plan was made with and the section results,
 // in SI units.
 type Record struct {
-	Flow           float64                  `json:"flow"`         // m³/s
-	BottomWidth    float64                  `json:"bottom_width"` // m
-	SideSlope      float64                  `json:"side_slope"`   // H:V
-	Roughness      float64                  `json:"roughness"`    // Manning n
-	MaxVelocity    float64                  `json:"max_velocity"` // m/s
-	MinVelocity    float64                  `json:"min_velocity"` // m/s
-	MaxSlope       float64                  `json:"max_slope"`    // steepest grade the velocity allows, m/m
-	MinSlope       float64                  `json:"min_slope"`    // flattest grade, m/m (0: no limit)
-	Grades         []float64                `json:"grades"`       // candidate grades, m/m
-	NormalDepths   []float64                `json:"normal_depths"`
-	BankHeights    []float64                `json:"bank_heights"`     // per grade, m above bed
-	DropHeights    []float64                `json:"drop_heights"`     // m
-	BasinLengths   []float64                `json:"basin_lengths"`    // per drop height, m
-	MinDropSpacing []float64                `json:"min_drop_spacing"` // per drop height, m
-	StartInvert    float64                  `json:"start_invert"`     // m
-	EndInvert      *float64                 `json:"end_invert"`       // m; null for a free end
-	Step           float64                  `json:"step"`             // elevation step, m
-	MaxCutDepth    float64                  `json:"max_cut_depth"`    // m
-	MaxFillHeight  float64                  `json:"max_fill_height"`  // m
-	MinReach       float64                  `json:"min_reach"`        // m
-	CrestWidth     float64                  `json:"crest_width"`      // m
-	Transition     float64                  `json:"transition_length"`
-	ByEyeRise      float64                  `json:"byeye_rise"` // m
-	FixedInverts   []Control                `json:"fixed_inverts"`
-	MinWaterLevels []Control                `json:"min_water_levels"`
-	Command        []CommandRange           `json:"-"`
-	Offtakes       []Offtake                `json:"offtakes"`
-	Ground         string                   `json:"ground_model"` // "level" or "cross_sections"
-	Template       earthwork.Template       `json:"-"`
-	Costs          earthwork.Costs          `json:"-"`
-	Volume         string                   `json:"volume_method"`
-	CheckFlows     []float64                `json:"check_flows"`
-	Freeboard      hydraulics.FreeboardRule `json:"-"`
+	Flow           float64   `json:"flow"`         // m³/s
+	BottomWidth    float64   `json:"bottom_width"` // m
+	SideSlope      float64   `json:"side_slope"`   // H:V
+	Roughness      float64   `json:"roughness"`    // Manning n
+	MaxVelocity    float64   `json:"max_velocity"` // m/s
+	MinVelocity    float64   `json:"min_velocity"` // m/s
+	MaxSlope       float64   `json:"max_slope"`    // steepest grade the velocity allows, m/m
+	MinSlope       float64   `json:"min_slope"`    // flattest grade, m/m (0: no limit)
+	Grades         []float64 `json:"grades"`       // candidate grades, m/m
+	NormalDepths   []float64 `json:"normal_depths"`
+	BankHeights    []float64 `json:"bank_heights"`     // per grade, m above bed
+	DropHeights    []float64 `json:"drop_heights"`     // m
+	BasinLengths   []float64 `json:"basin_lengths"`    // per drop height, m
+	MinDropSpacing []float64 `json:"min_drop_spacing"` // per drop height, m
+	StartInvert    float64   `json:"start_invert"`     // m
+	// StartInvertRaised is how far (m) the default start invert was raised
+	// above the ground minus normal depth (plus the margin at the start) so
+	// that the flattest grade can hold the lowest water levels downstream.
+	StartInvertRaised float64                  `json:"start_invert_raised"`
+	EndInvert         *float64                 `json:"end_invert"`      // m; null for a free end
+	Step              float64                  `json:"step"`            // elevation step, m
+	MaxCutDepth       float64                  `json:"max_cut_depth"`   // m
+	MaxFillHeight     float64                  `json:"max_fill_height"` // m
+	MinReach          float64                  `json:"min_reach"`       // m
+	CrestWidth        float64                  `json:"crest_width"`     // m
+	Transition        float64                  `json:"transition_length"`
+	ByEyeRise         float64                  `json:"byeye_rise"` // m
+	FixedInverts      []Control                `json:"fixed_inverts"`
+	MinWaterLevels    []Control                `json:"min_water_levels"`
+	Command           []CommandRange           `json:"-"`
+	Offtakes          []Offtake                `json:"offtakes"`
+	Ground            string                   `json:"ground_model"` // "level" or "cross_sections"
+	Template          earthwork.Template       `json:"-"`
+	Costs             earthwork.Costs          `json:"-"`
+	Volume            string                   `json:"volume_method"`
+	CheckFlows        []float64                `json:"check_flows"`
+	Freeboard         hydraulics.FreeboardRule `json:"-"`
 }
 
 // Plan is a canal profile with its earthwork, structures and hydraulics.
@@ -306,7 +310,7 @@ func (q *prepared) record() Record {
 	r := Record{Flow: d.Flow, BottomWidth: d.Section.BottomWidth, SideSlope: d.Section.SideSlope,
 		Roughness: d.Roughness, MaxVelocity: d.MaxVelocity, MinVelocity: d.MinVelocity,
 		MaxSlope: q.limits.MaxSlope, MinSlope: q.limits.MinSlope, Grades: q.grades, NormalDepths: q.depth,
-		DropHeights: q.heights, BasinLengths: q.basin, MinDropSpacing: q.spacing, StartInvert: q.z0, EndInvert: d.EndInvert,
+		DropHeights: q.heights, BasinLengths: q.basin, MinDropSpacing: q.spacing, StartInvert: q.z0, StartInvertRaised: q.raised, EndInvert: d.EndInvert,
 		Step: d.Step, MaxCutDepth: d.MaxCutDepth, MaxFillHeight: d.MaxFillHeight, MinReach: d.MinReach,
 		CrestWidth: q.crest, Transition: q.transLen, ByEyeRise: d.ByEyeRise,
 		FixedInverts: orEmpty(d.FixedInverts), MinWaterLevels: orEmpty(d.MinWaterLevels), Command: d.Command,
