@@ -108,6 +108,16 @@ func TestOptimumMatchesGLPK(t *testing.T) {
 			t.Errorf("%d stations: optimiser %.6f, glpsol %.6f (diff %.3g)", tc.n, got, want, got-want)
 		}
 		t.Logf("%d stations: optimiser %.6f (%d drops), glpsol %.6f in %v (diff %.2g)", tc.n, got, len(res.Drops), want, tg, got-want)
+		// The same problem on level DEM cross-sections runs the
+		// cross-section integrator in the optimiser; the MIP is unchanged.
+		levelCross(&p, 20)
+		resX, err := Optimize(p)
+		if err != nil {
+			t.Fatalf("%d stations on level cross-sections: %v", tc.n, err)
+		}
+		if got := resX.Totals.TotalCost; math.Abs(got-want) > 1e-6*want {
+			t.Errorf("%d stations on level cross-sections: optimiser %.6f, glpsol %.6f", tc.n, got, want)
+		}
 		if len(res.Drops) == 0 {
 			t.Errorf("%d stations: no drops in the optimum; the case proves little", tc.n)
 		}
