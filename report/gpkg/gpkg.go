@@ -5,7 +5,7 @@
 // transaction: a reader never sees some layers without the others, and a
 // failure leaves no file. The writer only creates a file at a path that does
 // not exist yet; callers stage it in a temporary folder and rename it into
-// place when the whole plan has been written (report.Staging).
+// place when the whole plan has been written (outdir.Stage).
 //
 // The file is the same bytes on every run as far as GDAL allows: GDAL
 // stamps each table's gpkg_contents.last_change with the clock, unless the
