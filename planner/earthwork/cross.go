@@ -123,17 +123,13 @@ func (r *ramp) integral(h *half, j int, y float64) float64 {
 	return r.sigma*(h.gi[j]-r.bank*d) - d*d*r.inv/2 - y*d
 }
 
-// meet returns the area between the ramp and the ground of h from the bank
-// edge to the first point where e = y, that point's distance from the
-// centre line and the ground level there (relative). It needs e(0) > y (or
-// a vertical face). Beyond the last node the ground is level, so e falls at
-// 1/z and always meets y.
-func (r *ramp) meet(h *half, y float64) (area, at, level float64) {
-	a, g := h.a, h.g
-	if r.z == 0 {
-		return 0, a[0], g[0]
-	}
-	n := len(a) - 1
+// find returns where the ramp meets y, the first point outward from the
+// bank edge where e = y: on segment j (from node j−1 to j, 1 ≤ j ≤ n) at
+// fraction fr of its width, or j = n+1 on the level ground beyond the last
+// node n; f0 = e(j−1) − y > 0 is the height at the segment's start. It
+// needs e(0) > y and a slope (z > 0).
+func (r *ramp) find(h *half, y float64) (j int, f0, fr float64) {
+	n := len(h.a) - 1
 	lo, hi := 1, n+1 // the first j in [1, n] with m[j] ≤ y, n+1 if none
 	for lo < hi {
 		mid := int(uint(lo+hi) >> 1)
@@ -143,21 +139,44 @@ func (r *ramp) meet(h *half, y float64) (area, at, level float64) {
 			lo = mid + 1
 		}
 	}
-	j := lo
-	if j <= n {
-		// The search gives f0 > 0 ≥ f1; the clamps only guard the division.
-		f0, f1 := max(r.e(h, j-1)-y, 0), min(r.e(h, j)-y, 0)
-		w := a[j] - a[j-1]
-		var fr float64
-		if f0 > 0 {
-			fr = f0 / (f0 - f1)
-		}
-		area = r.integral(h, j-1, y) + f0*w*fr/2
-		return max(area, 0), a[j-1] + w*fr, g[j-1] + (g[j]-g[j-1])*fr
+	if lo > n {
+		return lo, max(r.e(h, n)-y, 0), 0
 	}
-	f0 := max(r.e(h, n)-y, 0)
-	d := r.z * f0
-	return max(r.integral(h, n, y)+f0*d/2, 0), a[n] + d, g[n]
+	// The search gives f0 > 0 ≥ f1; the clamps only guard the division.
+	f0, f1 := max(r.e(h, lo-1)-y, 0), min(r.e(h, lo)-y, 0)
+	if f0 > 0 {
+		fr = f0 / (f0 - f1)
+	}
+	return lo, f0, fr
+}
+
+// area returns the area between the ramp and the ground of h from the bank
+// edge to where the ramp meets y (see find): cut for the cut slope, fill for
+// the fill slope. Beyond the last node the ground is level, so e falls at
+// 1/z and always meets y.
+func (r *ramp) area(h *half, y float64) float64 {
+	if r.z == 0 {
+		return 0
+	}
+	j, f0, fr := r.find(h, y)
+	if j < len(h.a) {
+		return max(r.integral(h, j-1, y)+f0*(h.a[j]-h.a[j-1])*fr/2, 0)
+	}
+	return max(r.integral(h, j-1, y)+f0*r.z*f0/2, 0)
+}
+
+// meet returns the distance from the centre line and the ground level
+// (relative) where the ramp meets y (see find).
+func (r *ramp) meet(h *half, y float64) (at, level float64) {
+	a, g := h.a, h.g
+	if r.z == 0 {
+		return a[0], g[0]
+	}
+	j, f0, fr := r.find(h, y)
+	if j < len(a) {
+		return a[j-1] + (a[j]-a[j-1])*fr, g[j-1] + (g[j]-g[j-1])*fr
+	}
+	return a[j-1] + r.z*f0, g[j-1]
 }
 
 // inner returns the cut and fill areas of the inner part at relative bed b.
@@ -206,11 +225,9 @@ func (s *section) areas(bed float64) (cut, fill float64) {
 		cut += c
 		fill += f
 		if b < h.top0 {
-			a, _, _ := h.cut.meet(h, b)
-			cut += a
+			cut += h.cut.area(h, b)
 		} else if b > h.top0 {
-			a, _, _ := h.fill.meet(h, -b)
-			fill += a
+			fill += h.fill.area(h, -b)
 		}
 	}
 	return cut, fill
@@ -235,10 +252,10 @@ func (x *crossSections) Catch(i int, bed float64) (left, right Catch) {
 		var at, lev float64
 		switch {
 		case b < h.top0:
-			_, at, lev = h.cut.meet(h, b)
+			at, lev = h.cut.meet(h, b)
 			c.Cut = true
 		case b > h.top0:
-			_, at, lev = h.fill.meet(h, -b)
+			at, lev = h.fill.meet(h, -b)
 		case b == h.top0:
 			at, lev = h.a[0], h.g[0]
 		default: // NaN bed
