@@ -87,7 +87,7 @@ func RenderAlternativesChart(w io.Writer, format string, c AlternativesChart) er
 
 	wd, ht := sizeOr(c.Width, 20*vg.Centimeter), sizeOr(c.Height, 16*vg.Centimeter)
 	top, bot := newPlot(), newPlot()
-	top.Title.Text = "Drop-height alternatives: " + c.Name
+	top.Title.Text = "Drop-height alternatives: " + plotName(c.Name)
 	top.Y.Label.Text = fmt.Sprintf("Earthwork volume (%s%s)", vname, volUnit)
 	bot.Y.Label.Text = fmt.Sprintf("Total cost (%s%s)", cname, currency)
 	bot.X.Label.Text = c.XLabel

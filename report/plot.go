@@ -22,6 +22,8 @@ import (
 	"gonum.org/v1/plot/vg/vgimg"
 	"gonum.org/v1/plot/vg/vgpdf"
 	"gonum.org/v1/plot/vg/vgsvg"
+
+	"canalstep/report/textsafe"
 )
 
 // PlotDPI is the resolution of PNG plots in dots per inch.
@@ -566,3 +568,8 @@ func (legendBackdrop) Plot(c draw.Canvas, p *plot.Plot) {
 	c.SetColor(color.NRGBA{R: 255, G: 255, B: 255, A: 215})
 	c.Fill(r.Path())
 }
+
+// plotName is a user's name made safe for a plot title: no characters
+// XML forbids (gonum/plot's SVG escapes markup itself) and no control or
+// bidi characters, at most 80 characters.
+func plotName(s string) string { return textsafe.XMLChars(textsafe.Clip(s, 80)) }

@@ -59,7 +59,7 @@ func RenderGroundProfile(w io.Writer, format string, g GroundProfile) error {
 	idx := decimate(x, [][]float64{z}, columnsFor(wd))
 
 	p := newPlot()
-	p.Title.Text = "Ground profile: " + g.Name + " (vertical exaggeration 1×)"
+	p.Title.Text = "Ground profile: " + plotName(g.Name) + " (vertical exaggeration 1×)"
 	p.X.Label.Text = fmt.Sprintf("Chainage (%s)", u.LengthUnit())
 	p.Y.Label.Text = fmt.Sprintf("Ground elevation (%s)", u.LengthUnit())
 	p.X.Tick.Marker, p.Y.Tick.Marker = niceTicks{8}, niceTicks{5}
@@ -85,7 +85,7 @@ func RenderGroundProfile(w io.Writer, format string, g GroundProfile) error {
 		return fmt.Errorf("%s: %w", what, err)
 	}
 	dc, _ := layout(p, nil, draw.New(c))
-	p.Title.Text = fmt.Sprintf("Ground profile: %s (vertical exaggeration %s×)", g.Name, roundVE(exaggeration(p, dc)))
+	p.Title.Text = fmt.Sprintf("Ground profile: %s (vertical exaggeration %s×)", plotName(g.Name), roundVE(exaggeration(p, dc)))
 	p.Add(legendBackdrop{})
 	p.Draw(dc)
 	if _, err := c.WriteTo(w); err != nil {

@@ -220,7 +220,7 @@ func RenderLongSection(w io.Writer, format string, s LongSection) error {
 		p.X.Label.Text = ""
 		p.X.Tick.Label.Font.Size = 0
 	}
-	p.Title.Text = "Long section: " + s.Name + " (vertical exaggeration 1×)"
+	p.Title.Text = "Long section: " + plotName(s.Name) + " (vertical exaggeration 1×)"
 
 	c, err := newCanvas(wd, ht, format)
 	if err != nil {
@@ -247,7 +247,7 @@ func RenderLongSection(w io.Writer, format string, s LongSection) error {
 			q.Y.Max = q.Y.Min + (q.Y.Max-q.Y.Min)*h/(h-need)
 		}
 	}
-	p.Title.Text = fmt.Sprintf("Long section: %s (vertical exaggeration %s×)", s.Name, roundVE(exaggeration(p, top)))
+	p.Title.Text = fmt.Sprintf("Long section: %s (vertical exaggeration %s×)", plotName(s.Name), roundVE(exaggeration(p, top)))
 	p.Add(legendBackdrop{})
 	if q != nil {
 		q.Add(legendBackdrop{})
