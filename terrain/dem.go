@@ -33,6 +33,21 @@ func (m Method) String() string {
 	return fmt.Sprintf("Method(%d)", int(m))
 }
 
+// Range is a closed interval of elevations in metres.
+type Range struct {
+	Min, Max float64 // m
+}
+
+// DefaultValidRange is the range of elevations [Options.ValidRange] takes
+// when nil: -500 m to 9000 m, which holds all dry land on Earth (the Dead
+// Sea shore lies near -430 m and the highest summit near 8850 m; both from
+// memory) and leaves out the fill values DEMs use for missing data
+// (-32768, -3.4e38, 3e38) and spikes such as 1e9.
+func DefaultValidRange() Range { return Range{Min: -500, Max: 9000} }
+
+// Contains reports whether z (m) lies in the range; never for NaN.
+func (r Range) Contains(z float64) bool { return z >= r.Min && z <= r.Max }
+
 // Options controls how [Open] reads a DEM. The zero value is valid.
 type Options struct {
 	// ZUnits is the vertical unit of the DEM's values: "m" (the default when
@@ -49,6 +64,12 @@ type Options struct {
 	// (each extra one is a second open of the same path). Zero means
 	// min(GOMAXPROCS, 4); 1 decodes on the calling goroutine only.
 	Readers int
+	// ValidRange is the range of elevations, in metres after the band's
+	// scale and offset and the ZUnits conversion, that a cell may hold. A
+	// cell outside it, or not finite (NaN, ±Inf), counts as nodata. Nil
+	// means [DefaultValidRange]; a non-nil range is used as given, so
+	// &Range{} admits 0 m only. Both ends must be finite, Min ≤ Max.
+	ValidRange *Range
 }
 
 // Errors returned (wrapped, with the path) by [Open] for DEMs that cannot be
@@ -101,6 +122,7 @@ type Info struct {
 	CacheBlocks              int    // capacity of the block cache
 	ZUnits                   string // vertical unit assumed: "m", "ft" or "us-ft"
 	Method                   Method
+	ValidRange               Range // elevations (m) taken as data; others are nodata
 }
 
 // DEM is an open elevation raster (its first band). A DEM is safe for
@@ -121,6 +143,7 @@ type DEM struct {
 	noData     float32
 	hasNoData  bool
 	mul, add   float64 // metres = raw*mul + add
+	valid      Range   // elevations taken as data, m
 	tw, th     int     // cached block size
 	ntx        int     // cached blocks per row
 	cache      blockCache
@@ -154,11 +177,18 @@ func Open(path string, opt Options) (*DEM, error) {
 	if opt.Readers < 0 {
 		return nil, fmt.Errorf("%d parallel readers is negative", opt.Readers)
 	}
+	vr := DefaultValidRange()
+	if opt.ValidRange != nil {
+		vr = *opt.ValidRange
+		if math.IsNaN(vr.Min) || math.IsNaN(vr.Max) || math.IsInf(vr.Min, 0) || math.IsInf(vr.Max, 0) || vr.Min > vr.Max {
+			return nil, fmt.Errorf("valid elevation range %g to %g m: both ends must be finite and the first not above the second", vr.Min, vr.Max)
+		}
+	}
 	ds, err := openRaster(path)
 	if err != nil {
 		return nil, fmt.Errorf("cannot open DEM %s: %s", path, strings.TrimSpace(err.Error()))
 	}
-	d, err := newDEM(ds, path, zu, zf, opt)
+	d, err := newDEM(ds, path, zu, zf, vr, opt)
 	if err != nil {
 		ds.Close()
 		return nil, fmt.Errorf("open DEM %s: %w", path, err)
@@ -166,7 +196,7 @@ func Open(path string, opt Options) (*DEM, error) {
 	return d, nil
 }
 
-func newDEM(ds *godal.Dataset, path, zu string, zf float64, opt Options) (*DEM, error) {
+func newDEM(ds *godal.Dataset, path, zu string, zf float64, vr Range, opt Options) (*DEM, error) {
 	st := ds.Structure()
 	if st.NBands < 1 {
 		return nil, errors.New("raster has no bands")
@@ -195,6 +225,9 @@ func newDEM(ds *godal.Dataset, path, zu string, zf float64, opt Options) (*DEM, 
 	scale, offset := bs.Scale, bs.Offset
 	if scale == 0 { // GDAL reports 1/0 when unset; 0 would flatten the DEM
 		scale = 1
+	}
+	if math.IsNaN(scale) || math.IsInf(scale, 0) || math.IsNaN(offset) || math.IsInf(offset, 0) {
+		return nil, fmt.Errorf("band scale %g and offset %g must be finite; set them with gdal_edit.py -scale 1 -offset 0", scale, offset)
 	}
 	tw, th := cacheBlockSize(st.SizeX, st.SizeY, bs.BlockSizeX, bs.BlockSizeY)
 	nblocks := opt.CacheBlocks
@@ -229,6 +262,7 @@ func newDEM(ds *godal.Dataset, path, zu string, zf float64, opt Options) (*DEM, 
 			CacheBlocks:       nblocks,
 			ZUnits:            zu,
 			Method:            opt.Method,
+			ValidRange:        vr,
 		},
 		gt:        gt,
 		w:         st.SizeX,
@@ -239,6 +273,7 @@ func newDEM(ds *godal.Dataset, path, zu string, zf float64, opt Options) (*DEM, 
 		hasNoData: hasND,
 		mul:       scale * zf,
 		add:       offset * zf,
+		valid:     vr,
 		tw:        tw,
 		th:        th,
 		ntx:       (st.SizeX + tw - 1) / tw,

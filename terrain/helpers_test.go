@@ -10,8 +10,10 @@ import (
 	"strings"
 	"testing"
 
-	"canalstep/testdata/reftool"
+	"github.com/airbusgeo/godal"
+
 	"canalstep/terrain"
+	"canalstep/testdata/reftool"
 )
 
 // Fixture georeferencing shared by the tests: UTM zone 33N (EPSG:32633),
@@ -93,4 +95,33 @@ func fields(tb testing.TB, line string) []float64 {
 		v = append(v, x)
 	}
 	return v
+}
+
+// mustWriteInt16 writes a w×h Int16 GeoTIFF on the fixture georeferencing,
+// in 256-cell DEFLATE tiles, with the band scale given (elevation = raw ×
+// scale) and, when nodata is not nil, a nodata value. WriteGeoTIFF writes
+// Float32 only, so this goes through godal.
+func mustWriteInt16(tb testing.TB, path string, w, h int, data []int16, scale float64, nodata *float64) {
+	tb.Helper()
+	godal.RegisterAll()
+	ds, err := godal.Create(godal.GTiff, path, 1, godal.Int16, w, h,
+		godal.CreationOption("TILED=YES", "BLOCKXSIZE=256", "BLOCKYSIZE=256", "COMPRESS=DEFLATE"))
+	if err != nil {
+		tb.Fatal(err)
+	}
+	sr, err := godal.NewSpatialRefFromEPSG(32633)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	defer sr.Close()
+	b := ds.Bands()[0]
+	steps := []error{ds.SetSpatialRef(sr), ds.SetGeoTransform(fxGeoTransform()), b.SetScaleOffset(scale, 0)}
+	if nodata != nil {
+		steps = append(steps, b.SetNoData(*nodata))
+	}
+	for _, err := range append(steps, b.Write(0, 0, data, w, h), ds.Close()) {
+		if err != nil {
+			tb.Fatal(err)
+		}
+	}
 }

@@ -36,8 +36,10 @@ var errClosed = errors.New("DEM is closed")
 // are converted with the band's scale and offset and then to metres with
 // Options.ZUnits.
 //
-// A point whose stencil has a nodata or NaN cell with non-zero weight gets
-// NaN; the caller decides how to report it. Points outside the raster (beyond
+// A cell is invalid when it holds the band's nodata value, or a value that
+// is not finite or, in metres, outside Options.ValidRange. A point whose
+// stencil has an invalid cell with non-zero weight gets NaN; the caller
+// decides how to report it. Points outside the raster (beyond
 // its outer edge, or with NaN coordinates) get NaN too, and Sample returns an
 // *OutsideError listing them after sampling the rest. Other errors (a block
 // that cannot be read) stop sampling.
@@ -113,9 +115,13 @@ func (d *DEM) span() int {
 	return 1
 }
 
-// bad reports whether a raw cell value is nodata or NaN.
+// bad reports whether a raw cell value is nodata, or not finite, or in
+// metres outside the valid range (NaN fails both comparisons).
 func (d *DEM) bad(v float32) bool {
-	return v != v || (d.hasNoData && v == d.noData)
+	if d.hasNoData && v == d.noData {
+		return true
+	}
+	return !d.valid.Contains(float64(v)*d.mul + d.add)
 }
 
 // nearest returns the raw value of cell (c, r), or NaN.

@@ -12,8 +12,6 @@ import (
 	"sync"
 	"testing"
 
-	"github.com/airbusgeo/godal"
-
 	"canalstep/terrain"
 )
 
@@ -432,30 +430,13 @@ func TestSouthUp(t *testing.T) {
 func TestInt16DEM(t *testing.T) {
 	path := filepath.Join(t.TempDir(), "int16.tif")
 	const w, h = 300, 280
-	godal.RegisterAll()
-	ds, err := godal.Create(godal.GTiff, path, 1, godal.Int16, w, h,
-		godal.CreationOption("TILED=YES", "BLOCKXSIZE=256", "BLOCKYSIZE=256", "COMPRESS=DEFLATE"))
-	if err != nil {
-		t.Fatal(err)
-	}
 	data := make([]int16, w*h)
 	for r := range h {
 		for c := range w {
 			data[r*w+c] = int16(1000 + 3*c - 2*r) // decimetres
 		}
 	}
-	sr, err := godal.NewSpatialRefFromEPSG(32633)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer sr.Close()
-	b := ds.Bands()[0]
-	for _, err := range []error{ds.SetSpatialRef(sr), ds.SetGeoTransform(fxGeoTransform()),
-		b.SetScaleOffset(0.1, 0), b.Write(0, 0, data, w, h), ds.Close()} {
-		if err != nil {
-			t.Fatal(err)
-		}
-	}
+	mustWriteInt16(t, path, w, h, data, 0.1, nil)
 	d := mustOpen(t, path, terrain.Options{})
 	if in := d.Info(); in.DataType != "Int16" || in.Scale != 0.1 {
 		t.Fatalf("Info: %s, scale %v", in.DataType, in.Scale)

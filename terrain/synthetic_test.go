@@ -11,8 +11,8 @@ import (
 	"testing"
 	"unsafe"
 
-	"canalstep/testdata/reftool"
 	"canalstep/terrain"
+	"canalstep/testdata/reftool"
 )
 
 // bilinear samples g at easting e, northing n (metres of g's CRS) between
