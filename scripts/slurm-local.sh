@@ -57,15 +57,16 @@ need_root() {
 
 # alive NAME prints the PID recorded in run/NAME.pid when that process runs
 # the executable /usr/sbin/NAME (so a reused PID is never taken for ours);
-# it fails otherwise.
+# it fails otherwise. Without root, where /proc/PID/exe is not readable,
+# the process name stands in for the executable.
 alive() {
 	local pf="$dir/run/$1.pid" pid exe
 	[ -s "$pf" ] || return 1
 	pid=$(tr -dc '0-9' <"$pf")
 	[ -n "$pid" ] || return 1
-	exe=$(readlink "/proc/$pid/exe" 2>/dev/null) || return 1
+	exe=$(readlink "/proc/$pid/exe" 2>/dev/null) || exe=$(cat "/proc/$pid/comm" 2>/dev/null) || return 1
 	case "$exe" in
-	*/"$1" | */"$1"-wlm | */"$1"" (deleted)" | */"$1"-wlm" (deleted)") echo "$pid" ;;
+	"$1" | */"$1" | */"$1"-wlm | */"$1"" (deleted)" | */"$1"-wlm" (deleted)") echo "$pid" ;;
 	*) return 1 ;;
 	esac
 }
@@ -181,8 +182,8 @@ link_conf() {
 # answers too (sinfo alone shows a node idle for minutes after its slurmd
 # died).
 node_state() {
-	SLURM_CONF=$conf scontrol show slurmd >/dev/null 2>&1 || return 0
-	SLURM_CONF=$conf sinfo -h -n "$node" -o %T 2>/dev/null | head -1
+	SLURM_CONF=$conf timeout 3 scontrol show slurmd >/dev/null 2>&1 || return 0
+	SLURM_CONF=$conf timeout 3 sinfo -h -n "$node" -o %T 2>/dev/null | head -1
 }
 
 cmd_start() {
@@ -225,12 +226,13 @@ cmd_start() {
 		say "slurmd started"
 	fi
 
-	local state="" i
-	for ((i = 0; i < timeout * 5; i++)); do
+	local state="" deadline=$((SECONDS + timeout))
+	while :; do
 		state=$(node_state)
 		case "$state" in
 		idle | mixed | allocated) break ;;
 		esac
+		[ "$SECONDS" -lt "$deadline" ] || break
 		sleep 0.2
 	done
 	case "$state" in
