@@ -73,7 +73,7 @@ type Options struct {
 }
 
 // Errors returned (wrapped, with the path) by [Open] for DEMs that cannot be
-// sampled. Test with errors.Is.
+// sampled. Test with errors.Is; each also matches [ErrBadDEM].
 var (
 	ErrNoGeoTransform = errors.New("DEM has no georeferencing (geotransform)")
 	ErrNoCRS          = errors.New("DEM has no coordinate reference system; assign one with gdal_edit.py -a_srs EPSG:n")
@@ -155,9 +155,13 @@ type DEM struct {
 	ahead      lookahead
 }
 
-// Open opens the raster at path (anything GDAL opens, including /vsi… paths)
-// for sampling its first band. It refuses rasters without a geotransform or
-// CRS, rotated rasters and rasters smaller than 2×2 cells.
+// Open opens the raster at path (a file in one of the formats of
+// [DEMDrivers], locally or through GDAL's /vsimem/, /vsizip/, /vsicurl/,
+// /vsis3/ … file systems) for sampling its first band. Before GDAL sees the
+// file, Open checks the path and, for a VRT, its XML and every file it
+// names (see the package documentation), and refuses what is unsafe with
+// an error matching [ErrBadDEM]. It refuses rasters without a geotransform
+// or CRS, rotated rasters and rasters smaller than 2×2 cells.
 func Open(path string, opt Options) (*DEM, error) {
 	setup()
 	zu := opt.ZUnits
@@ -184,16 +188,35 @@ func Open(path string, opt Options) (*DEM, error) {
 			return nil, fmt.Errorf("valid elevation range %g to %g m: both ends must be finite and the first not above the second", vr.Min, vr.Max)
 		}
 	}
+	if err := checkDEM(path); err != nil {
+		return nil, err
+	}
 	ds, err := openRaster(path)
 	if err != nil {
-		return nil, fmt.Errorf("cannot open DEM %s: %s", path, strings.TrimSpace(err.Error()))
+		msg := strings.Join(strings.Fields(err.Error()), " ") // GDAL's message, on one line
+		if identify(path) == "" {
+			return nil, refuse(ErrFormatRefused, "cannot open DEM %s: not in a raster format canalstep reads (%s); convert it with gdal_translate -of GTiff",
+				showName(path), formatList())
+		}
+		return nil, refuse(nil, "cannot open DEM %s: %s", showName(path), msg)
 	}
 	d, err := newDEM(ds, path, zu, zf, vr, opt)
 	if err != nil {
 		ds.Close()
-		return nil, fmt.Errorf("open DEM %s: %w", path, err)
+		return nil, fmt.Errorf("open DEM %s: %w", showName(path), &refusal{kind: kindOf(err), msg: err.Error()})
 	}
 	return d, nil
+}
+
+// kindOf returns err when it is one of the sentinels newDEM returns, else
+// nil (the refusal then matches ErrBadDEM only).
+func kindOf(err error) error {
+	for _, k := range []error{ErrNoGeoTransform, ErrNoCRS, ErrRotated} {
+		if err == k {
+			return k
+		}
+	}
+	return nil
 }
 
 func newDEM(ds *godal.Dataset, path, zu string, zf float64, vr Range, opt Options) (*DEM, error) {

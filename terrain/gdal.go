@@ -4,6 +4,7 @@ package terrain
 #cgo pkg-config: gdal
 #include <stdlib.h>
 #include <string.h>
+#include <cpl_conv.h>
 #include <cpl_error.h>
 #include <gdal.h>
 
@@ -32,9 +33,10 @@ static void canalstepPopQuiet(char *out, int n) {
 }
 
 // Raw dataset handles for decoding whole blocks straight into the caller's
-// buffer with GDALReadBlock, bypassing GDAL's block cache.
-static GDALDatasetH canalstepOpenRaw(const char *path) {
-	return GDALOpenEx(path, GDAL_OF_RASTER | GDAL_OF_READONLY, NULL, NULL, NULL);
+// buffer with GDALReadBlock, bypassing GDAL's block cache. Only the drivers
+// in allowed (a NULL-terminated list) may open path.
+static GDALDatasetH canalstepOpenRaw(const char *path, char **allowed) {
+	return GDALOpenEx(path, GDAL_OF_RASTER | GDAL_OF_READONLY, (const char *const *)allowed, NULL, NULL);
 }
 
 static int canalstepReadBlock(GDALDatasetH ds, int bx, int by, void *buf) {
@@ -60,45 +62,64 @@ import (
 // strip files, the strips of one 256-row band).
 const gdalCacheMB = "64"
 
+// safetyConfig are the GDAL configuration options setup sets for the whole
+// process, over whatever the environment says. Options that GDAL 3.6 does
+// not know are harmless there and take effect on newer GDAL.
+var safetyConfig = [][2]string{
+	// Never run Python code from a VRT's pixel function (GDAL 2.2 and later,
+	// so effective on 3.6).
+	{"GDAL_VRT_ENABLE_PYTHON", "NO"},
+	// Never open an in-memory dataset by name, MEM:::DATAPOINTER=… (GDAL
+	// 3.10 and later; on older GDAL the MEM driver is simply not registered
+	// here, and the path and VRT checks refuse such names).
+	{"GDAL_MEM_ENABLE_OPEN", "NO"},
+	// Never read a VRTRawRasterBand (GDAL 3.10 and later; the VRT check
+	// refuses them on every version).
+	{"GDAL_VRT_ENABLE_RAWRASTERBAND", "NO"},
+}
+
 var (
-	setupOnce, allOnce sync.Once
-	allRegistered      atomic.Bool
+	setupOnce sync.Once
+	// gdalCalls counts the GDAL calls that open or identify a file, so that
+	// tests can tell that a refused DEM never reached GDAL.
+	gdalCalls atomic.Int64
+	// cAllowed is demDrivers' short names as a NULL-terminated C array,
+	// made once by setup and kept for the life of the process.
+	cAllowed **C.char
 )
 
-// setup bounds GDAL's block cache and registers the GeoTIFF driver, once per
-// process. os.Setenv reaches C's environment in a cgo program, and GDAL reads
-// GDAL_CACHEMAX lazily on first use of its cache.
+// setup bounds GDAL's block cache, sets the safety options and registers
+// the drivers of the allow-list, once per process. os.Setenv reaches C's
+// environment in a cgo program, and GDAL reads GDAL_CACHEMAX lazily on
+// first use of its cache.
 func setup() {
 	setupOnce.Do(func() {
 		if os.Getenv("GDAL_CACHEMAX") == "" {
 			os.Setenv("GDAL_CACHEMAX", gdalCacheMB)
 		}
-		if err := godal.RegisterRaster(godal.GTiff); err != nil {
-			registerAll()
+		for _, kv := range safetyConfig {
+			k, v := C.CString(kv[0]), C.CString(kv[1])
+			C.CPLSetConfigOption(k, v)
+			C.free(unsafe.Pointer(k))
+			C.free(unsafe.Pointer(v))
 		}
+		registerDrivers()
+		arr := (*[1 << 10]*C.char)(C.malloc(C.size_t(len(demDrivers)+1) * C.size_t(unsafe.Sizeof((*C.char)(nil)))))
+		for i, d := range demDrivers {
+			arr[i] = C.CString(d.name)
+		}
+		arr[len(demDrivers)] = nil
+		cAllowed = &arr[0]
 	})
 }
 
-// registerAll registers all of GDAL's drivers, once. Registering the 200-odd
-// drivers takes about 12 ms of start-up on a 2-core machine, so it waits
-// until a raster is not a GeoTIFF.
-func registerAll() {
-	allOnce.Do(func() {
-		godal.RegisterAll()
-		allRegistered.Store(true)
-	})
-}
-
-// openRaster opens path read-only as a raster: with the GeoTIFF driver
-// first, then, if that fails, with every GDAL driver.
+// openRaster opens path read-only as a raster with the drivers of the
+// allow-list only. GDAL reads the folder to find side-car files (.hdr,
+// .prj, .aux.xml), which checkDEM has inspected.
 func openRaster(path string) (*godal.Dataset, error) {
 	setup()
-	ds, err := godal.Open(path, godal.RasterOnly())
-	if err == nil || allRegistered.Load() {
-		return ds, err
-	}
-	registerAll()
-	return godal.Open(path, godal.RasterOnly())
+	gdalCalls.Add(1)
+	return godal.Open(path, godal.RasterOnly(), godal.Drivers(driverNames()...), godal.SiblingFiles())
 }
 
 // quietly runs f with GDAL's error printing diverted, for the few GDAL calls
@@ -125,10 +146,12 @@ func quietly(f func()) string {
 type rawDataset struct{ h C.GDALDatasetH }
 
 func openRaw(path string) (rawDataset, error) {
+	setup()
 	cpath := C.CString(path)
 	defer C.free(unsafe.Pointer(cpath))
 	var h C.GDALDatasetH
-	msg := quietly(func() { h = C.canalstepOpenRaw(cpath) })
+	gdalCalls.Add(1)
+	msg := quietly(func() { h = C.canalstepOpenRaw(cpath, cAllowed) })
 	if h == nil {
 		return rawDataset{}, fmt.Errorf("cannot open DEM %s: %s", path, msg)
 	}
