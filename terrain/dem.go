@@ -241,7 +241,10 @@ func newDEM(ds *godal.Dataset, path, zu string, zf float64, vr Range, opt Option
 	if wkt == "" {
 		return nil, ErrNoCRS
 	}
-	crs := describe(ds.SpatialRef(), wkt) // borrowed: not closed
+	crs, err := CRSInfo(wkt)
+	if err != nil {
+		return nil, fmt.Errorf("the DEM's CRS: %w", err)
+	}
 	band := ds.Bands()[0]
 	bs := band.Structure()
 	nd, hasND := band.NoData()

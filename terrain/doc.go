@@ -62,9 +62,15 @@
 // # Coordinate transforms
 //
 // [Transform] converts coordinates between two CRSs in traditional GIS order
-// (x = longitude or easting, y = latitude or northing). [CRSInfo] tells the
-// caller whether a CRS is geographic and what its linear unit is, so it can
-// decide where to measure chainage.
+// (x = longitude or easting, y = latitude or northing). Transforms with a
+// lon/lat side should use [LonLat] (EPSG:4326 in that order), which GDAL
+// builds far faster than OGC:CRS84 for the same coordinates; OGC:CRS84 given
+// by users is taken as LonLat. [SharedTransform] keeps one Transform per CRS
+// pair for the life of the process, safe for concurrent use, derives a
+// pair's inverse from the forward one, and skips PROJ when both CRSs are the
+// same. [CRSInfo] tells the caller whether a CRS is geographic and what its
+// linear unit is, so it can decide where to measure chainage; its results
+// are cached too. CRS definitions are never read from files or URLs.
 //
 // Tests, the demo and the benchmark write rasters with [WriteGeoTIFF]: a
 // tiled, compressed GeoTIFF, written atomically.

@@ -94,3 +94,35 @@ func ExampleCRSInfo() {
 	// EPSG:2227: geographic false, 0.304800609601 m per unit
 	// EPSG:4326: geographic true, 0 m per unit
 }
+
+// One transform pair per process: every alignment of a run asks for the
+// same pair and gets the same Transform, built once; the inverse comes from
+// the forward one. OGC:CRS84, the CRS of RFC 7946 GeoJSON, is taken as
+// LonLat. The eastings and northings are those of ExampleTransform_Transform
+// (cs2cs gives 500000.00 3983948.45 for the first).
+func ExampleSharedTransform() {
+	toUTM, err := terrain.SharedTransform("OGC:CRS84", "EPSG:32633")
+	if err != nil {
+		log.Fatal(err)
+	}
+	again, _ := terrain.SharedTransform(terrain.LonLat, "EPSG:32633")
+	toLonLat, err := toUTM.Inverse()
+	if err != nil {
+		log.Fatal(err)
+	}
+	xs, ys := []float64{15, 15.5}, []float64{36, 36.2} // lon, lat in degrees
+	if err := toUTM.Transform(xs, ys); err != nil {
+		log.Fatal(err)
+	}
+	for i := range xs {
+		fmt.Printf("E %.3f m, N %.3f m\n", xs[i], ys[i])
+	}
+	if err := toLonLat.Transform(xs, ys); err != nil {
+		log.Fatal(err)
+	}
+	fmt.Printf("back: %.9f°E %.9f°N; one shared transform: %v\n", xs[1], ys[1], again == toUTM)
+	// Output:
+	// E 500000.000 m, N 3983948.453 m
+	// E 544949.925 m, N 4006247.585 m
+	// back: 15.500000000°E 36.200000000°N; one shared transform: true
+}
