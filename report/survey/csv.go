@@ -77,7 +77,7 @@ var stakeColumns = []struct {
 }{
 	{"chainage", units.Length, 3, false}, {"offset", units.Length, 3, false},
 	{"easting", units.Ratio, 3, true}, {"northing", units.Ratio, 3, true},
-	{"lon", units.Ratio, 8, false}, {"lat", units.Ratio, 8, false},
+	{"lon", units.Ratio, 9, false}, {"lat", units.Ratio, 9, false},
 	{"ground", units.Length, 3, false}, {"design_level", units.Length, 3, false}, {"cut_fill", units.Length, 3, false},
 	{"slope_h_per_v", units.Ratio, 2, false},
 }

@@ -39,6 +39,6 @@ func ExampleWriteStakesCSV() {
 	// # offset: negative left, positive right, looking downstream; cut_fill = ground - design_level: positive cut, negative fill; slope_h_per_v: horizontal per vertical of the face the point marks
 	// # inputs dated 2024-03-09
 	// point,kind,station,chainage_m,offset_m,easting_m,northing_m,lon,lat,ground_m,design_level_m,cut_fill_m,slope_h_per_v,note
-	// C0+250.00,centreline,0+250.00,250.000,0.000,500150.000,5000200.000,21.00190906,45.15527645,197.842,197.256,0.586,,
-	// XR0+250.00,catch_right,0+250.00,250.000,6.100,500154.880,5000196.340,21.00197107,45.15524349,198.012,198.012,0.000,2.00,
+	// C0+250.00,centreline,0+250.00,250.000,0.000,500150.000,5000200.000,21.001909060,45.155276450,197.842,197.256,0.586,,
+	// XR0+250.00,catch_right,0+250.00,250.000,6.100,500154.880,5000196.340,21.001971070,45.155243490,198.012,198.012,0.000,2.00,
 }
