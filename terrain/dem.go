@@ -144,8 +144,11 @@ type DEM struct {
 	hasNoData  bool
 	mul, add   float64 // metres = raw*mul + add
 	valid      Range   // elevations taken as data, m
-	tw, th     int     // cached block size
-	ntx        int     // cached blocks per row
+	rawLo      float32 // raw values whose elevation is in valid, when rawOK
+	rawHi      float32
+	rawOK      bool
+	tw, th     int // cached block size
+	ntx        int // cached blocks per row
 	cache      blockCache
 	blocksRead int
 	readers    int      // parallel decoders wanted (Options.Readers)
@@ -308,6 +311,7 @@ func newDEM(ds *godal.Dataset, path, zu string, zf float64, vr Range, opt Option
 	if d.readers == 0 {
 		d.readers = min(runtime.GOMAXPROCS(0), 4)
 	}
+	d.rawLo, d.rawHi, d.rawOK = rawInterval(vr, d.mul, d.add)
 	d.pool = []reader{{band: band}}
 	d.direct = bs.DataType == godal.Float32 && tw == bs.BlockSizeX && th == bs.BlockSizeY
 	d.cache.init(nblocks, tw*th)

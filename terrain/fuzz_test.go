@@ -12,7 +12,9 @@ import (
 // tiles. Invariants: no panic; a point is reported outside exactly when it
 // lies beyond the raster's outer edge (or is NaN); inside, a bilinear value
 // is a convex combination of cell values, so it lies within the grid's
-// minimum and maximum, and a nearest value is one of the cell values.
+// minimum and maximum, and a nearest value is one of the cell values. On a
+// copy with invalid cells (3e38, ±Inf, 1e9, -32768, NaN) every sample is
+// NaN or within that same range.
 func FuzzSample(f *testing.F) {
 	const w, h = 40, 30
 	g := roughGrid(w, h, 3)
@@ -23,9 +25,19 @@ func FuzzSample(f *testing.F) {
 		lo, hi = min(lo, float64(v)), max(hi, float64(v))
 		values[v] = true
 	}
+	// The same grid with invalid cells (fill values, infinities, a spike):
+	// a sample is NaN or, as above, within the valid cells' range.
+	bad := g
+	bad.Data = append([]float32(nil), g.Data...)
+	for i, v := range []float32{3e38, float32(math.Inf(1)), float32(math.Inf(-1)), 1e9, -32768, float32(math.NaN())} {
+		bad.Data[(7*i+3)*w%len(bad.Data)+i] = v
+	}
+	badPath := mustWriteDEM(f, f.TempDir(), "fuzz-bad.tif", bad, terrain.WithTileSize(16))
 	dems := []*terrain.DEM{
 		mustOpen(f, path, terrain.Options{}),
 		mustOpen(f, path, terrain.Options{Method: terrain.Nearest, CacheBlocks: 2}),
+		mustOpen(f, badPath, terrain.Options{}),
+		mustOpen(f, badPath, terrain.Options{Method: terrain.Nearest}),
 	}
 	for _, s := range [][2]float64{
 		{fxX0, fxY0}, {fxX0 + w*fxCell, fxY0 - h*fxCell}, {fxX0 + 160, fxY0 - 160},
@@ -51,6 +63,9 @@ func FuzzSample(f *testing.F) {
 			}
 			if i == 1 && !values[float32(z)] {
 				t.Fatalf("nearest at (%v, %v) = %v, not a cell value", x, y, z)
+			}
+			if i >= 2 && !math.IsNaN(z) && !(z >= lo-1e-9 && z <= hi+1e-9) {
+				t.Fatalf("DEM with invalid cells, method %d, at (%v, %v) = %v, neither NaN nor within [%v, %v]", i, x, y, z, lo, hi)
 			}
 		}
 	})

@@ -116,12 +116,16 @@ func (d *DEM) span() int {
 }
 
 // bad reports whether a raw cell value is nodata, or not finite, or in
-// metres outside the valid range (NaN fails both comparisons).
+// metres outside the valid range (NaN fails every comparison; infinities
+// lie outside any finite interval).
 func (d *DEM) bad(v float32) bool {
 	if d.hasNoData && v == d.noData {
 		return true
 	}
-	return !d.valid.Contains(float64(v)*d.mul + d.add)
+	if d.rawOK {
+		return !(v >= d.rawLo && v <= d.rawHi)
+	}
+	return !d.valid.Contains(cellMetres(v, d.mul, d.add))
 }
 
 // nearest returns the raw value of cell (c, r), or NaN.
