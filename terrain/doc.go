@@ -41,13 +41,16 @@
 //     attribute names in any case, values from an attribute or a child
 //     element alike). It is refused when it uses a VRTRawRasterBand (raw
 //     bytes of any file), a pixel function in Python or with code, open
-//     options, a DTD, XML character references, or a band or dataset type
-//     other than the sourced, derived (C pixel functions) and warped ones.
-//     Every file it names (SourceFilename, SourceDataset) passes the same
-//     checks as the DEM itself, relative to the VRT where it says so; a
-//     named VRT is inspected in turn, to 4 VRT files in a chain and 100,000
-//     files in all; any other named file must be recognised by a driver of
-//     the allow-list.
+//     options, a DTD, XML character references, a band or dataset type
+//     other than the sourced, derived (C pixel functions) and warped ones,
+//     or any element outside those gdalbuildvrt, gdal_translate and
+//     gdalwarp write (so no geolocation, RPC or pansharpening elements,
+//     which name datasets of their own). Every file it names
+//     (SourceFilename, SourceDataset) passes the same checks as the DEM
+//     itself, relative to the VRT where it says so; a named VRT is
+//     inspected in turn, to 4 VRT files in a chain and 100,000 files in
+//     all, and one that names itself is refused; any other named file must
+//     be recognised by a driver of the allow-list.
 //   - Overview, mask and Erdas auxiliary files that GDAL may open beside a
 //     file (x.tif.ovr, x.tif.msk, x.tif.aux, x.aux, in any case) are
 //     checked like VRT sources.
