@@ -4,9 +4,13 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"time"
 
 	"canalstep/alignment"
 	"canalstep/planner"
+	"canalstep/planner/corridor"
+	"canalstep/report/html"
+	"canalstep/report/survey"
 )
 
 // Stager is where one output folder's files are written before the folder
@@ -33,10 +37,127 @@ func WriteGround(st Stager, p *alignment.Profile, u Units) error {
 	return errors.Join(csvErr, <-plotErr)
 }
 
-// WritePlan writes one planned alignment's folder into st: its ground
-// (ground.csv, ground.png) and, for a plan, stations.csv, drops.csv,
-// profile.png and profile.svg; summary.json always, with the conflicts of
-// an infeasible plan (planErr).
+// Folder is everything one alignment's output folder is written from.
+type Folder struct {
+	// Corridor is the stationed, sampled alignment with its frames and
+	// route; the survey deliverables (stakes.csv, plan.geojson, plan.gpkg,
+	// plan.xml) need it.
+	Corridor *corridor.Corridor
+	Result   *planner.Result
+	PlanErr  error // the planner's error for an infeasible plan
+	// Alternatives are the drop-height sets of a comparison (nil for a
+	// plan); Result is then the least-cost feasible one, or the first.
+	Alternatives []planner.Alternative
+	Units        Units
+	Provenance   Provenance
+}
+
+// Provenance says where a plan's numbers came from: summary.json and
+// report.html carry it. It holds no wall-clock time.
+type Provenance = html.Provenance
+
+// InputFile is one input file of a run with its SHA-256.
+type InputFile = html.InputFile
+
+// provenanceJSON is Provenance in summary.json.
+type provenanceJSON struct {
+	Version     string          `json:"version"`
+	CommandLine string          `json:"command_line"`
+	Inputs      []inputFileJSON `json:"inputs"`
+	DEMCRS      string          `json:"dem_crs"`
+	DEMCellSize float64         `json:"dem_cell_size"` // m
+	WorkCRS     string          `json:"work_crs"`
+	InputsDate  string          `json:"inputs_date"`
+}
+
+type inputFileJSON struct {
+	Role   string `json:"role"`
+	Path   string `json:"path"`
+	SHA256 string `json:"sha256"`
+	Bytes  int64  `json:"bytes"`
+}
+
+func newProvenanceJSON(p Provenance, work string) *provenanceJSON {
+	out := &provenanceJSON{Version: p.Version, CommandLine: p.CommandLine, DEMCRS: p.DEMCRS, DEMCellSize: p.DEMCellSize,
+		WorkCRS: work, InputsDate: p.InputsDate, Inputs: []inputFileJSON{}}
+	for _, f := range p.Inputs {
+		out.Inputs = append(out.Inputs, inputFileJSON{Role: f.Role, Path: f.Path, SHA256: f.SHA256, Bytes: f.Bytes})
+	}
+	return out
+}
+
+// The files of an alignment folder besides the survey deliverables.
+const (
+	ReportFile = "report.html"
+)
+
+// WriteFolder writes one alignment's output folder into st: its ground
+// (ground.csv, ground.png); summary.json and report.html always (with the
+// conflicts of an infeasible plan); for an optimal plan stations.csv,
+// drops.csv, profile.png/svg/pdf and the survey deliverables (stakes.csv,
+// plan.geojson, plan.gpkg, plan.xml); for a comparison alternatives.csv and
+// alternatives.png too.
+func WriteFolder(st Stager, f Folder) error {
+	p, r, u := f.Corridor.Profile, f.Result, f.Units
+	if err := WriteGround(st, p, u); err != nil {
+		return err
+	}
+	if f.Alternatives != nil {
+		if err := WriteComparison(st, p.Name, f.Alternatives, u); err != nil {
+			return err
+		}
+	}
+	sum := NewSummary(p.Name, r, f.PlanErr)
+	sum.Provenance = newProvenanceJSON(f.Provenance, p.WorkCRS)
+	if err := st.WriteFile("summary.json", func(w io.Writer) error { return WriteSummaryJSON(w, sum) }); err != nil {
+		return err
+	}
+	if err := st.WriteFile(ReportFile, func(w io.Writer) error {
+		return html.Write(w, html.Report{Name: p.Name, Profile: p, Result: r, PlanErr: f.PlanErr, Alternatives: f.Alternatives,
+			Provenance: f.Provenance, Units: u, Caution: SafetyNotice, Words: Words(u)})
+	}); err != nil {
+		return err
+	}
+	if r.Status != planner.Optimal {
+		return nil
+	}
+	if err := writePlanFiles(st, p, r, u); err != nil {
+		return err
+	}
+	src := survey.Source{DEM: demPath(f.Provenance), DEMCRS: f.Provenance.DEMCRS, Version: f.Provenance.Version, Date: inputsDate(f.Provenance)}
+	if err := survey.WriteFiles(st, &survey.Input{Corridor: f.Corridor, Result: r, Units: u, Source: src}); err != nil {
+		return fmt.Errorf("survey deliverables: %w", err)
+	}
+	return nil
+}
+
+// Words words the planner's findings in u for the HTML report.
+func Words(u Units) html.Words {
+	return html.Words{
+		Violation: func(v planner.Violation) string { return FormatViolation(v, u) },
+		Warning:   func(w planner.Warning) string { return FormatWarning(w, u) },
+		Error:     func(err error) string { return ErrorText(err, u) },
+	}
+}
+
+func demPath(p Provenance) string {
+	for _, f := range p.Inputs {
+		if f.Role == "dem" {
+			return f.Path
+		}
+	}
+	return ""
+}
+
+func inputsDate(p Provenance) time.Time {
+	t, _ := time.Parse("2006-01-02", p.InputsDate)
+	return t
+}
+
+// WritePlan writes one planned alignment's folder into st without the
+// survey deliverables, the report or provenance: ground.csv/png,
+// summary.json and, for a plan, stations.csv, drops.csv and the long
+// section.
 func WritePlan(st Stager, p *alignment.Profile, r *planner.Result, planErr error, u Units) error {
 	if err := WriteGround(st, p, u); err != nil {
 		return err
@@ -49,6 +170,11 @@ func WritePlan(st Stager, p *alignment.Profile, r *planner.Result, planErr error
 	if r.Status != planner.Optimal {
 		return nil
 	}
+	return writePlanFiles(st, p, r, u)
+}
+
+// writePlanFiles writes stations.csv, drops.csv and the long section.
+func writePlanFiles(st Stager, p *alignment.Profile, r *planner.Result, u Units) error {
 	for _, f := range []struct {
 		name  string
 		write func(io.Writer) error
@@ -61,7 +187,7 @@ func WritePlan(st Stager, p *alignment.Profile, r *planner.Result, planErr error
 		}
 	}
 	ls := NewLongSection(p.Name, r, u)
-	for _, name := range []string{"profile.png", "profile.svg"} {
+	for _, name := range []string{"profile.png", "profile.svg", "profile.pdf"} {
 		path, err := st.Path(name)
 		if err == nil {
 			err = WriteLongSection(path, ls)

@@ -149,7 +149,10 @@ type Summary struct {
 	Saving         float64 `json:"saving"`
 	SavingFraction float64 `json:"saving_fraction"`
 	SavingAgainst  string  `json:"saving_against"`
-	Caution        string  `json:"caution"`
+	// Provenance: version, command line, inputs with their SHA-256, the
+	// DEM's and the work CRS, the inputs' date (never the clock).
+	Provenance *provenanceJSON `json:"provenance,omitempty"`
+	Caution    string          `json:"caution"`
 }
 
 // FindingJSON is a typed finding with its SI wording.

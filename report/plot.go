@@ -24,6 +24,10 @@ import (
 	"gonum.org/v1/plot/vg/vgsvg"
 
 	"canalstep/report/textsafe"
+
+	"time"
+
+	"codeberg.org/go-pdf/fpdf"
 )
 
 // PlotDPI is the resolution of PNG plots in dots per inch.
@@ -573,3 +577,14 @@ func (legendBackdrop) Plot(c draw.Canvas, p *plot.Plot) {
 // XML forbids (gonum/plot's SVG escapes markup itself) and no control or
 // bidi characters, at most 80 characters.
 func plotName(s string) string { return textsafe.XMLChars(textsafe.Clip(s, 80)) }
+
+// SetPDFDate sets the creation and modification date written into every
+// PDF this process renders. PDFs carry a date; canalstep's outputs carry no
+// wall-clock time, so a run sets the inputs' date once before it renders
+// (the PDF library keeps it process-wide) and reruns stay byte-identical.
+func SetPDFDate(t time.Time) {
+	fpdf.SetDefaultCreationDate(t)
+	fpdf.SetDefaultModificationDate(t)
+}
+
+func init() { SetPDFDate(time.Date(2000, 1, 1, 0, 0, 0, 0, time.UTC)) }
