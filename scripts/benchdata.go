@@ -11,8 +11,11 @@
 //	points.txt     the stations every 1 m along it, plus its vertices, as
 //	               "x y" in the DEM's CRS: what the profile command samples,
 //	               fed to gdallocationinfo and the Python reference.
+//	batch.geojson  -batch alignments (default 60) of 2 to 5 km for the batch
+//	               benchmark, each running roughly down the DEM's regional
+//	               fall with a gentle swing, spread over the DEM (lon/lat).
 //
-// Usage: go run scripts/benchdata.go [-out bench-out] [-size 20000]
+// Usage: go run scripts/benchdata.go [-out bench-out] [-size 20000] [-batch 60]
 //
 // The terrain and route are invented for the benchmark.
 package main
@@ -24,6 +27,7 @@ import (
 	"fmt"
 	"log"
 	"math"
+	"math/rand/v2"
 	"os"
 	"path/filepath"
 
@@ -42,6 +46,7 @@ const (
 func main() {
 	out := flag.String("out", "bench-out", "output folder")
 	size := flag.Int("size", 20000, "DEM width and height in cells")
+	nBatch := flag.Int("batch", 60, "alignments in batch.geojson")
 	flag.Parse()
 	if err := os.MkdirAll(*out, 0o755); err != nil {
 		log.Fatal(err)
@@ -55,6 +60,9 @@ func main() {
 		}
 	}
 	if err := writeRoute(*out); err != nil {
+		log.Fatal(err)
+	}
+	if err := writeBatch(*out, *nBatch, float64(*size)*cell); err != nil {
 		log.Fatal(err)
 	}
 }
@@ -134,33 +142,79 @@ func writeRoute(dir string) error {
 		return err
 	}
 
+	if err := writeLines(filepath.Join(dir, "route.geojson"), []string{"bench-40km"}, [][]float64{vx}, [][]float64{vy}); err != nil {
+		return err
+	}
+	fmt.Fprintf(os.Stderr, "benchdata: route %.0f m, %d vertices, %d points\n", chain, len(vx), n)
+	return nil
+}
+
+// writeBatch writes n alignments of 2 to 5 km (seeded) to batch.geojson.
+// Each starts on a grid of points inside the DEM (extent m square) and
+// runs with 250 m legs on a bearing that swings ±12° about 143°, the
+// direction of the regional fall of elevation.
+func writeBatch(dir string, n int, extent float64) error {
+	if n <= 0 {
+		return nil
+	}
+	r := rand.New(rand.NewPCG(20261202, 7))
+	cols := int(math.Ceil(math.Sqrt(float64(n))))
+	margin := 6000.0 // m: a 5 km line from any start stays inside
+	pitch := (extent - 2*margin) / float64(cols)
+	names := make([]string, n)
+	xs, ys := make([][]float64, n), make([][]float64, n)
+	total := 0.0
+	for i := range n {
+		length := 2000 + 3000*r.Float64()
+		x := x0 + margin + (float64(i%cols)+0.5)*pitch
+		y := y0 - margin - (float64(i/cols)+0.5)*pitch
+		phase := 2 * math.Pi * r.Float64()
+		legs := int(math.Ceil(length / 250))
+		leg := length / float64(legs)
+		lx, ly := []float64{x}, []float64{y}
+		for k := 1; k <= legs; k++ {
+			bearing := (143 + 12*math.Sin(phase+float64(k)/3)) * math.Pi / 180
+			x += leg * math.Sin(bearing)
+			y += leg * math.Cos(bearing)
+			lx, ly = append(lx, x), append(ly, y)
+		}
+		names[i], xs[i], ys[i] = fmt.Sprintf("bench-batch-%02d", i+1), lx, ly
+		total += length
+	}
+	if err := writeLines(filepath.Join(dir, "batch.geojson"), names, xs, ys); err != nil {
+		return err
+	}
+	fmt.Fprintf(os.Stderr, "benchdata: batch: %d alignments, %.1f km in all\n", n, total/1000)
+	return nil
+}
+
+// writeLines writes LineStrings given in the DEM's CRS as an RFC 7946
+// GeoJSON FeatureCollection (lon/lat), one feature per name. xs and ys are
+// transformed in place.
+func writeLines(path string, names []string, xs, ys [][]float64) error {
 	tr, err := terrain.NewTransform(fmt.Sprintf("EPSG:%d", epsg), "OGC:CRS84")
 	if err != nil {
 		return err
 	}
 	defer tr.Close()
-	if err := tr.Transform(vx, vy); err != nil {
-		return err
-	}
-	coords := make([][2]float64, len(vx))
-	for i := range vx {
-		coords[i] = [2]float64{math.Round(vx[i]*1e9) / 1e9, math.Round(vy[i]*1e9) / 1e9}
-	}
-	fc := map[string]any{
-		"type": "FeatureCollection",
-		"features": []any{map[string]any{
+	features := make([]any, len(names))
+	for i, name := range names {
+		if err := tr.Transform(xs[i], ys[i]); err != nil {
+			return err
+		}
+		coords := make([][2]float64, len(xs[i]))
+		for k := range xs[i] {
+			coords[k] = [2]float64{math.Round(xs[i][k]*1e9) / 1e9, math.Round(ys[i][k]*1e9) / 1e9}
+		}
+		features[i] = map[string]any{
 			"type":       "Feature",
-			"properties": map[string]any{"name": "bench-40km"},
+			"properties": map[string]any{"name": name},
 			"geometry":   map[string]any{"type": "LineString", "coordinates": coords},
-		}},
+		}
 	}
-	b, err := json.Marshal(fc)
+	b, err := json.Marshal(map[string]any{"type": "FeatureCollection", "features": features})
 	if err != nil {
 		return err
 	}
-	if err := os.WriteFile(filepath.Join(dir, "route.geojson"), b, 0o644); err != nil {
-		return err
-	}
-	fmt.Fprintf(os.Stderr, "benchdata: route %.0f m, %d vertices, %d points\n", chain, len(vx), n)
-	return nil
+	return os.WriteFile(path, b, 0o644)
 }
