@@ -28,6 +28,8 @@ import (
 	"time"
 
 	"codeberg.org/go-pdf/fpdf"
+
+	"image/png"
 )
 
 // PlotDPI is the resolution of PNG plots in dots per inch.
@@ -97,7 +99,7 @@ func formatFromPath(path string) (string, error) {
 func newCanvas(w, h vg.Length, format string) (vg.CanvasWriterTo, error) {
 	switch format {
 	case "png":
-		return vgimg.PngCanvas{Canvas: vgimg.NewWith(vgimg.UseWH(w, h), vgimg.UseDPI(PlotDPI))}, nil
+		return fastPNG{vgimg.NewWith(vgimg.UseWH(w, h), vgimg.UseDPI(PlotDPI))}, nil
 	case "svg":
 		return vgsvg.NewWith(vgsvg.UseWH(w, h), vgsvg.EmbedFonts(true)), nil
 	case "pdf":
@@ -588,3 +590,26 @@ func SetPDFDate(t time.Time) {
 }
 
 func init() { SetPDFDate(time.Date(2000, 1, 1, 0, 0, 0, 0, time.UTC)) }
+
+// fastPNG is a raster canvas written as PNG at the fastest compression
+// level: the pixels are the same as at the default level (PNG is lossless),
+// the file somewhat larger, the encoding about twice as fast.
+type fastPNG struct{ *vgimg.Canvas }
+
+func (c fastPNG) WriteTo(w io.Writer) (int64, error) {
+	cw := &countWriter{w: w}
+	enc := png.Encoder{CompressionLevel: png.BestSpeed}
+	err := enc.Encode(cw, c.Canvas.Image())
+	return cw.n, err
+}
+
+type countWriter struct {
+	w io.Writer
+	n int64
+}
+
+func (c *countWriter) Write(p []byte) (int, error) {
+	n, err := c.w.Write(p)
+	c.n += int64(n)
+	return n, err
+}
