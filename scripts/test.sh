@@ -4,7 +4,7 @@
 set -euo pipefail
 cd "$(dirname "$0")/.."
 . scripts/setup.sh
-canalstep_setup
+canalstep_setup chromium
 echo "== go vet ./..."
 go vet ./...
 echo "== go test -race ./..."
