@@ -94,7 +94,8 @@ const (
 // WriteFolder writes one alignment's output folder into st: its ground
 // (ground.csv, ground.png); summary.json and report.html always (with the
 // conflicts of an infeasible plan); for an optimal plan stations.csv,
-// drops.csv, profile.png/svg/pdf and the survey deliverables (stakes.csv,
+// drops.csv, profile.png/svg/pdf, the curve table (curves.csv, when
+// curves were fitted) and the survey deliverables (stakes.csv,
 // plan.geojson, plan.gpkg, plan.xml); for a comparison alternatives.csv and
 // alternatives.png too.
 func WriteFolder(st Stager, f Folder) error {
@@ -123,6 +124,11 @@ func WriteFolder(st Stager, f Folder) error {
 	}
 	if err := writePlanFiles(st, p, r, u); err != nil {
 		return err
+	}
+	if rt := f.Corridor.Route; rt != nil && len(rt.Curves) > 0 {
+		if err := st.WriteFile("curves.csv", func(w io.Writer) error { return WriteCurvesCSV(w, rt, p.Stations[0].Chainage, u) }); err != nil {
+			return err
+		}
 	}
 	src := survey.Source{DEM: demPath(f.Provenance), DEMCRS: f.Provenance.DEMCRS, Version: f.Provenance.Version, Date: inputsDate(f.Provenance)}
 	if err := survey.WriteFiles(st, &survey.Input{Corridor: f.Corridor, Result: r, Units: u, Source: src}); err != nil {

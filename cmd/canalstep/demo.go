@@ -24,6 +24,7 @@ func runDemo(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		fmt.Fprintln(stdout, "Usage: canalstep demo [--out DIR] [--seed N]")
 		fmt.Fprintf(stdout, "\nBuilds the fictional %s on generated terrain and runs canalstep on it.\n\nFlags:\n", terrain.DemoSchemeName)
 		fs.PrintDefaults()
+		fmt.Fprintf(stdout, "\n%s\n", exitCodeHelp)
 	}
 	if ok, err := parseFlags(fs, args); !ok {
 		return err

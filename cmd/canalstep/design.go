@@ -94,7 +94,7 @@ func (f *designFlags) register(fs *flag.FlagSet) {
 	f.value(fs, &f.maxVelocity, V, "max-velocity", "max_velocity", "permissible (non-eroding) mean velocity (required)")
 	f.value(fs, &f.minVelocity, V, "min-velocity", "min_velocity", "non-silting mean velocity; 0 for none")
 	fs.StringVar(&f.dropHeights, "drop-heights", f.dropHeights, "allowed drop heights, comma-separated; one value means a fixed height")
-	fs.StringVar(&f.grades, "grades", "", "candidate bed grades (m/m), comma-separated; default: --grade-count grades from the steepest the velocity allows")
+	fs.StringVar(&f.grades, "grades", f.grades, "candidate bed grades (m/m), comma-separated; default: --grade-count grades from the steepest the velocity allows")
 	fs.IntVar(&f.gradeCount, "grade-count", f.gradeCount, "number of default candidate grades")
 	f.value(fs, &f.startInvert, L, "start-invert", "level", "bed level at the first station; default: ground minus normal depth, plus the command margin there (water surface at ground level, or the margin above it)")
 	f.value(fs, &f.endInvert, L, "end-invert", "level", "bed level the canal must tie into at its last station; default: free")
@@ -247,9 +247,11 @@ func (c controls) global() bool {
 	return false
 }
 
-// forAlignment adds the controls that apply to the alignment name to d.
-func (c controls) forAlignment(d *planner.Design, name string) {
-	applies := func(s scoped) bool { return s.name == "" || s.name == name }
+// forAlignment adds to d the controls that apply to the alignment called
+// name, of corridor corridor ("" for none): those for every alignment and
+// those scoped to either name.
+func (c controls) forAlignment(d *planner.Design, name, corridor string) {
+	applies := func(s scoped) bool { return s.name == "" || s.name == name || (corridor != "" && s.name == corridor) }
 	for _, s := range c.fixed {
 		if applies(s) {
 			d.FixedInverts = append(d.FixedInverts, planner.Control{Chainage: s.value[0], Level: s.value[1]})

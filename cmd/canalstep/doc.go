@@ -23,9 +23,15 @@ The commands are:
 
 Every command prints its flags with --help. Values are SI (m, m³/s, m/s)
 unless --units us is given (ft, cfs, ft/s); the conversion happens only at
-the edges. Exit status is 0 on success, 2 for a usage error (a bad or
-missing flag, an input that cannot be planned as given) and 1 for a failed
-or infeasible run.
+the edges. Each number flag states in --help the physical range its value
+must lie in. Exit status is 0 on success; 1 for a design or data failure
+(an infeasible plan, an alignment that failed); 2 for bad usage or input
+(a bad or missing flag, an unreadable or hostile file, a value out of
+range, controls in conflict); 3 for an internal error (a bug: one line,
+no stack trace); 128+n when interrupted by signal n (130 SIGINT, 143
+SIGTERM, 129 SIGHUP), with every finished alignment folder whole and
+nothing half-written. A failed alignment never stops the others; the last
+line says which folders were written.
 
 Examples:
 

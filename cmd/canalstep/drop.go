@@ -8,6 +8,7 @@ import (
 	"strings"
 	"text/tabwriter"
 
+	"canalstep/planner"
 	"canalstep/planner/hydraulics"
 	"canalstep/report"
 	"canalstep/report/units"
@@ -91,31 +92,34 @@ type dropResult struct {
 // runDrop implements `canalstep drop`: a straight drop with its stilling
 // basin, designed at the design flow and checked at a list of flows.
 func runDrop(_ context.Context, args []string, stdout, _ io.Writer) error {
+	sys, _, err := preParse(args)
+	if err != nil {
+		return err
+	}
 	fs := newFlagSet("drop", stdout)
-	flow := fs.Float64("flow", 0, "design discharge (m³/s, or cfs with --units us)")
-	width := fs.Float64("width", 0, "width of the crest and of the rectangular basin (m or ft); the canal bed width is a common choice")
-	height := fs.Float64("height", 0, "bed fall at the drop, upstream bed to downstream bed (m or ft)")
+	n := numberFlags{fs, &sys}
+	var flow, width, height, crestRaise, depression, notchCd float64
+	holdRatio := hydraulics.DefaultSmallMarginRatio
+	L := units.Length
+	n.add(&flow, units.Flow, "flow", planner.Ranges["flow"], "design discharge (m³/s, or cfs with --units us)")
+	n.add(&width, L, "width", planner.Ranges["crest_width"], "width of the crest and of the rectangular basin (m or ft); the canal bed width is a common choice")
+	n.add(&height, L, "height", planner.Ranges["drop_height"], "bed fall at the drop, upstream bed to downstream bed (m or ft)")
 	var cf canalFlags
-	cf.register(fs, "canal (the same above and below the drop)")
+	cf.register(n, "canal (the same above and below the drop)")
 	transition := fs.String("transition", "none", "outlet transition type for the loss coefficient Co: none (0, conservative for sweep-out), warped, cylinder-quadrant, simplified-straight, straight-line, square-ended (Chow 1959 ch. 17 after Hinds 1928)")
-	flowsFlag := fs.String("flows", "0.25,0.5,1", "flows to check, as fractions of the design flow; the basin floor is set to hold the jump at all of them")
-	holdRatio := fs.Float64("hold-ratio", hydraulics.DefaultSmallMarginRatio, "tailwater / required sequent depth the basin floor is designed for (1.10: common practice)")
-	crestRaise := fs.Float64("crest-raise", 0, "fix the crest height above the upstream bed (m or ft) instead of designing it")
-	depression := fs.Float64("depression", 0, "fix the basin floor depression below the downstream bed (m or ft) instead of designing it")
-	notchCd := fs.Float64("notch-cd", 0, "also design a trapezoidal control notch that holds normal depth at 100 % and 50 % of the design flow, with this calibrated discharge coefficient (no default: take it from a calibrated source)")
+	flowsFlag := fs.String("flows", "0.25,0.5,1", "flows to check, as fractions of the design flow, each in "+planner.Ranges["check_flow"].String()+"; the basin floor is set to hold the jump at all of them")
+	n.add(&holdRatio, units.Ratio, "hold-ratio", holdRange, "tailwater / required sequent depth the basin floor is designed for (1.10: common practice)")
+	n.add(&crestRaise, L, "crest-raise", structureRange, "fix the crest height above the upstream bed (m or ft) instead of designing it")
+	n.add(&depression, L, "depression", structureRange, "fix the basin floor depression below the downstream bed (m or ft) instead of designing it")
+	n.add(&notchCd, units.Ratio, "notch-cd", notchCoeffRange, "also design a trapezoidal control notch that holds normal depth at 100 % and 50 % of the design flow, with this calibrated discharge coefficient (no default: take it from a calibrated source)")
 	var of outputFlags
 	u, ok, err := of.parseCommand(fs, args, stdout,
 		"canalstep drop --flow Q --width B --height H --bottom-width B --side-slope Z --roughness N --slope S [--transition TYPE] [--flows 0.25,0.5,1] [--units si|us] [--json]",
-		"A straight (vertical) drop with a plain stilling basin: Rand (1955) geometry, hydraulic jump,\nbasin length, crest raise to hold the upstream normal depth, basin floor depression, and the\ntailwater check (swept_out, in_basin, drowned) at each flow.")
+		"A straight (vertical) drop with a plain stilling basin: Rand (1955) geometry, hydraulic jump,\nbasin length, crest raise to hold the upstream normal depth, basin floor depression, and the\ntailwater check (swept_out, in_basin, drowned) at each flow.\nNumbers are in the --units unit; each flag's range is the physical range its value must lie in.")
 	if !ok {
 		return err
 	}
 	if err := requireFlags(fs, "flow", "width", "height", "bottom-width", "side-slope", "roughness", "slope"); err != nil {
-		return err
-	}
-	if err := checkNumbers(fs,
-		append([]string{"flow", "width", "height", "hold-ratio", "notch-cd"}, canalPositive...),
-		append([]string{"crest-raise", "depression"}, canalNonNegative...)); err != nil {
 		return err
 	}
 	tr, err := hydraulics.LookupTransition(*transition)
@@ -129,10 +133,10 @@ func runDrop(_ context.Context, args []string, stdout, _ io.Writer) error {
 
 	lm := unitLength(u)
 	c := hydraulics.SI()
-	q := *flow * unitFlow(u)
+	q := flow
 	in := hydraulics.DropInput{
-		Q: q, CrestWidth: *width * lm, Height: *height * lm,
-		Downstream: cf.channel(lm), TransitionLoss: tr.Outlet, HoldRatio: *holdRatio,
+		Q: q, CrestWidth: width, Height: height,
+		Downstream: cf.channel(), TransitionLoss: tr.Outlet, HoldRatio: holdRatio,
 	}
 	for _, f := range fractions {
 		if f != 1 {
@@ -140,12 +144,10 @@ func runDrop(_ context.Context, args []string, stdout, _ io.Writer) error {
 		}
 	}
 	if fs.Changed("crest-raise") {
-		p := *crestRaise * lm
-		in.CrestRaise = &p
+		in.CrestRaise = &crestRaise
 	}
 	if fs.Changed("depression") {
-		ds := *depression * lm
-		in.Depression = &ds
+		in.Depression = &depression
 	}
 	d, err := hydraulics.DesignDrop(c, in)
 	if err != nil {
@@ -156,7 +158,7 @@ func runDrop(_ context.Context, args []string, stdout, _ io.Writer) error {
 	}
 	res := dropResult{
 		Units: unitsName(u), LengthUnit: u.LengthUnit(), FlowUnit: flowUnit(u),
-		Flow: sig6(*flow), CrestWidth: sig6(*width), BedFall: sig6(*height),
+		Flow: sig6(u.FromSI(units.Flow, q)), CrestWidth: sig6(width / lm), BedFall: sig6(height / lm),
 		Transition: tr.Name, OutletLoss: sig6(tr.Outlet),
 		UpstreamDepth: sig6(d.UpstreamDepth / lm), DownstreamDepth: sig6(d.DownstreamDepth / lm),
 		CrestRaise: sig6(d.CrestRaise / lm), ControlWidth: sig6(d.ControlWidth / lm),
@@ -176,11 +178,11 @@ func runDrop(_ context.Context, args []string, stdout, _ io.Writer) error {
 		SafetyNotice:      report.SafetyNotice,
 	}
 	if fs.Changed("notch-cd") {
-		nt, err := hydraulics.DesignNotch(c, in.Downstream, q, q/2, *notchCd)
+		nt, err := hydraulics.DesignNotch(c, in.Downstream, q, q/2, notchCd)
 		if err != nil {
 			return fmt.Errorf("drop: control notch: %w", err)
 		}
-		res.Notch = &notchResult{SillWidth: sig6(nt.SillWidth / lm), SideFlare: sig6(nt.SideFlare), Coefficient: sig6(*notchCd)}
+		res.Notch = &notchResult{SillWidth: sig6(nt.SillWidth / lm), SideFlare: sig6(nt.SideFlare), Coefficient: sig6(notchCd)}
 	}
 	for _, f := range fractions {
 		o, err := hydraulics.CheckOutlet(c, d, in, f*q)
@@ -188,7 +190,7 @@ func runDrop(_ context.Context, args []string, stdout, _ io.Writer) error {
 			return fmt.Errorf("drop: outlet check at %g × design flow: %w", f, err)
 		}
 		res.Flows = append(res.Flows, dropFlowResult{
-			Fraction: sig6(f), Flow: sig6(f * *flow),
+			Fraction: sig6(f), Flow: sig6(f * u.FromSI(units.Flow, q)),
 			DownstreamDepth: sig6(o.DownstreamDepth / lm), TailwaterDepth: sig6(o.TailwaterDepth / lm),
 			SequentDepth: sig6(o.SequentDepth / lm), TailwaterRatio: sig6(o.TailwaterRatio), Margin: sig6(o.Margin / lm),
 			JumpState: string(o.JumpState), ToeFroude: sig6(o.ToeFroude), RequiredDepression: sig6(o.RequiredDepression / lm),

@@ -99,17 +99,24 @@ func TestDropExitCodes(t *testing.T) {
 	}{
 		{"design", t42Args, 0, "Outlet check"},
 		{"help", []string{"drop", "-h"}, 0, "Usage: canalstep drop"},
-		{"zero width", withArgs(t42Args, "--width", "0"), 2, "--width must be positive"},
-		{"negative height", withArgs(t42Args, "--height", "-1"), 2, "--height must be positive"},
-		{"zero flow", withArgs(t42Args, "--flow", "0"), 2, "--flow must be positive"},
+		{"zero width", withArgs(t42Args, "--width", "0"), 2, "\"--width\" flag: 0 is outside (0, 500] m"},
+		{"negative height", withArgs(t42Args, "--height", "-1"), 2, "\"--height\" flag: -1 is outside (0, 20] m"},
+		// Issue 8: a 1e300 m drop printed Inf and NaN with exit status 0.
+		{"absurd height", withArgs(t42Args, "--height", "1e300"), 2, "\"--height\" flag: 1e300 is outside (0, 20] m"},
+		{"absurd height as JSON", withArgs(t42Args, "--height", "1e300", "--json"), 2, "1e300 is outside (0, 20] m"},
+		{"absurd height in feet", withArgs(t42Args, "--units", "us", "--height", "1e300"), 2, "1e300 is outside (0, 65.6168] ft"},
+		{"absurd flow", withArgs(t42Args, "--flow", "1e300"), 2, "1e300 is outside (0, 10000] m³/s"},
+		{"absurd hold ratio", withArgs(t42Args, "--hold-ratio", "1e300"), 2, "--hold-ratio"},
+		{"absurd crest raise", withArgs(t42Args, "--crest-raise", "1e300"), 2, "--crest-raise"},
+		{"zero flow", withArgs(t42Args, "--flow", "0"), 2, "\"--flow\" flag: 0 is outside (0, 10000] m³/s"},
 		{"bad number", withArgs(t42Args, "--height", "1.2m"), 2, "invalid argument"},
-		{"zero slope", withArgs(t42Args, "--slope", "0"), 2, "--slope must be positive"},
-		{"negative side slope", withArgs(t42Args, "--side-slope", "-2"), 2, "--side-slope must be zero or positive"},
+		{"zero slope", withArgs(t42Args, "--slope", "0"), 2, "\"--slope\" flag: 0 is outside (0, 0.2]"},
+		{"negative side slope", withArgs(t42Args, "--side-slope", "-2"), 2, "\"--side-slope\" flag: -2 is outside [0, 20]"},
 		{"unknown transition", withArgs(t42Args, "--transition", "rounded"), 2, "unknown transition type"},
 		{"bad flow list", withArgs(t42Args, "--flows", "0.5,half"), 2, "not a number"},
-		{"zero flow fraction", withArgs(t42Args, "--flows", "0,1"), 2, "is not positive"},
+		{"zero flow fraction", withArgs(t42Args, "--flows", "0,1"), 2, "--flows: 0 is outside (0, 2]"},
 		{"empty flow list", withArgs(t42Args, "--flows", ""), 2, "--flows is empty"},
-		{"negative depression", withArgs(t42Args, "--depression", "-0.5"), 2, "--depression must be zero or positive"},
+		{"negative depression", withArgs(t42Args, "--depression", "-0.5"), 2, "\"--depression\" flag: -0.5 is outside [0, 20] m"},
 		// A supercritical canal below gives no tailwater: infeasible, exit 1.
 		{"steep canal below", withArgs(t42Args, "--slope", "0.02"), 1, "steep"},
 		{"missing canal", []string{"drop", "--flow", "10", "--width", "3", "--height", "1.2"}, 2, "missing --bottom-width"},
@@ -123,8 +130,11 @@ func TestDropExitCodes(t *testing.T) {
 			if !strings.Contains(out+errs, tc.contains) {
 				t.Errorf("output lacks %q:\n%s%s", tc.contains, out, errs)
 			}
-			if tc.code != 0 && out != "" {
-				t.Errorf("error case wrote to stdout: %q", out)
+			if tc.code != 0 {
+				checkOneLine(t, errs, tc.contains)
+				if out != "" {
+					t.Errorf("error case wrote to stdout: %q", out)
+				}
 			}
 		})
 	}

@@ -7,6 +7,7 @@ package main
 import (
 	"context"
 	"fmt"
+	"io"
 	"os"
 	"os/signal"
 	"syscall"
@@ -21,9 +22,15 @@ func main() {
 		cancel(interrupted{s.(syscall.Signal)})
 		signal.Stop(sigs) // a second signal ends the process at once
 	}()
-	err := run(ctx, os.Args[1:], os.Stdout, os.Stderr)
+	os.Exit(runMain(ctx, os.Args[1:], os.Stdout, os.Stderr))
+}
+
+// runMain runs canalstep, prints a failure as one line on stderr and
+// returns the exit status (exitCodeHelp).
+func runMain(ctx context.Context, args []string, stdout, stderr io.Writer) int {
+	err := run(ctx, args, stdout, stderr)
 	if err != nil {
-		fmt.Fprintf(os.Stderr, "canalstep: %s\n", oneLine(err))
+		fmt.Fprintf(stderr, "canalstep: %s\n", oneLine(err))
 	}
-	os.Exit(exitCode(err))
+	return exitCode(err)
 }

@@ -25,7 +25,9 @@ import (
 // planSetup is what plan and compare share: the flags, the design file,
 // the unit system, and the per-alignment designs they build.
 type planSetup struct {
-	name   string // the command
+	args   []string          // the command line after the command's name
+	prov   report.Provenance // where the run's numbers come from
+	name   string            // the command
 	sys    units.System
 	fs     *flag.FlagSet
 	ground *groundFlags
@@ -42,7 +44,7 @@ type planSetup struct {
 // read first (from --units, else the design file's units key), so that
 // every number flag reads the right unit.
 func newPlanSetup(name string, args []string, stdout io.Writer) (*planSetup, error) {
-	s := &planSetup{name: name}
+	s := &planSetup{name: name, args: args}
 	sys, designPath, err := preParse(args)
 	if err != nil {
 		return nil, err
@@ -181,26 +183,42 @@ func (s *planSetup) designs(sc scheme) ([]*job, error) {
 				df.given[p.flag] = true
 			}
 		}
+		// The corridor's table, then the alignment's own: the more specific
+		// wins. Each table's chainage controls hold for this alignment.
+		var own []controls
 		if s.file != nil {
-			for _, key := range []string{a.Name, a.Overrides.Corridor} {
+			for _, key := range []string{a.Overrides.Corridor, a.Name} {
 				tbl, ok := s.file.tables[key]
 				if !ok || key == "" {
 					continue
 				}
+				where := fmt.Sprintf(" [alignment.%q]", textsafe.Clip(key, 80))
 				fs := flag.NewFlagSet(s.name, flag.ContinueOnError)
 				fs.SetOutput(io.Discard)
-				df.register(fs)
-				if err := s.file.apply(fs, tbl, fmt.Sprintf(" [alignment.%q]", key), true); err != nil {
+				df.register(fs) // sets df's control lists to nil: they hold the table's own
+				if err := s.file.apply(fs, tbl, where, true); err != nil {
 					return nil, err
 				}
 				df.noteGiven(fs)
+				c, err := df.controls()
+				if err != nil {
+					return nil, inputf("design file %s%s: %v", textsafe.Terminal(s.file.path), where, err)
+				}
+				if len(c.names()) > 0 {
+					return nil, inputf("design file %s%s: write the table's chainage controls without NAME@: they hold for %s",
+						textsafe.Terminal(s.file.path), where, textsafe.Terminal(key))
+				}
+				own = append(own, c)
 			}
 		}
 		d, err := df.design(s.name)
 		if err != nil {
 			return nil, fmt.Errorf("alignment %q: %w", textsafe.Terminal(a.Name), err)
 		}
-		s.ctl.forAlignment(&d, a.Name)
+		s.ctl.forAlignment(&d, a.Name, a.Overrides.Corridor)
+		for _, c := range own {
+			c.forAlignment(&d, a.Name, "")
+		}
 		offs, err := servedBy(sc, a)
 		if err != nil {
 			return nil, err
@@ -300,6 +318,10 @@ func (s *planSetup) run(ctx context.Context, stdout, stderr io.Writer, sets [][]
 	}
 	info := dem0.Info()
 	dem := describeDEM(info)
+	if s.prov, err = s.provenance(info); err != nil {
+		dem0.Close()
+		return err
+	}
 	dir, err := outdir.Open(ctx, s.out, outdir.Options{Wait: s.wait, Waiting: func(h outdir.Holder) {
 		fmt.Fprintf(stderr, "canalstep: waiting for the run of %s to finish writing %s\n", h, textsafe.Terminal(s.out))
 	}})
@@ -314,6 +336,7 @@ func (s *planSetup) run(ctx context.Context, stdout, stderr io.Writer, sets [][]
 	defer dir.Close()
 	err = runner.Each(ctx, len(jobs), s.jobs, dem0, s.ground.openDEM, func(i int, g *terrain.DEM) {
 		j := jobs[i]
+		defer recoverJob(&j.err)
 		if j.err = s.sample(j, dem, g); j.err != nil {
 			return
 		}
@@ -321,12 +344,13 @@ func (s *planSetup) run(ctx context.Context, stdout, stderr io.Writer, sets [][]
 		j.err = s.write(dir, j, sets != nil)
 	})
 	var names []string
-	failed := 0
+	fail := &runFailure{total: len(jobs)}
 	for _, j := range jobs {
 		names = append(names, alignment.SafeName(j.a.Name))
 		if j.err != nil {
-			failed++
-			fmt.Fprintf(stdout, "\n%s: FAILED: %s\n", textsafe.Terminal(j.a.Name), textsafe.Clip(planErrorText(j.err, s.sys), 400))
+			text := textsafe.Clip(planErrorText(j.err, s.sys), 400)
+			fail.add(j.a.Name, text, j.err)
+			fmt.Fprintf(stdout, "\n%s: FAILED: %s\n", textsafe.Terminal(j.a.Name), text)
 			continue
 		}
 		if j.c == nil || j.results == nil {
@@ -344,24 +368,41 @@ func (s *planSetup) run(ctx context.Context, stdout, stderr io.Writer, sets [][]
 		fmt.Fprintln(stdout, dir.Report(names, true))
 		return err
 	}
-	if failed > 0 {
-		return fmt.Errorf("%d of %d alignments failed; %s", failed, len(jobs), dir.Report(names, false))
+	if fail.failed > 0 {
+		fail.written = dir.Report(names, false)
+		return fail
 	}
 	return nil
 }
 
-// write stages and commits one job's folder.
+// write stages and commits one job's folder. A plan that failed (bad input
+// or infeasible), or a comparison in which no drop-height set is feasible,
+// writes nothing: the alignment counts as failed (exit status 1 or 2) and
+// its folder from an earlier run, if any, stays as it was.
 func (s *planSetup) write(dir *outdir.Dir, j *job, compare bool) error {
-	if !compare && j.results[0].Result == nil {
-		return j.results[0].Err // bad input: nothing to write
+	if !compare && j.results[0].Err != nil {
+		return j.results[0].Err
 	}
-	return writeFolder(dir, j.c.Profile.Folder, func(st report.Stager) error {
-		if compare {
-			return report.WriteComparison(st, j.a.Name, j.results, s.sys)
+	if compare && !anyFeasible(j.results) {
+		return fmt.Errorf("no drop-height set is feasible; the first: %w", j.results[0].Err)
+	}
+	f := report.Folder{Corridor: j.c, Units: s.sys, Provenance: s.prov}
+	best := bestAlternative(j.results)
+	f.Result, f.PlanErr = j.results[best].Result, j.results[best].Err
+	if compare {
+		f.Alternatives = j.results
+	}
+	return writeFolder(dir, j.c.Profile.Folder, func(st report.Stager) error { return report.WriteFolder(st, f) })
+}
+
+// anyFeasible reports whether some alternative was planned.
+func anyFeasible(alts []planner.Alternative) bool {
+	for _, a := range alts {
+		if a.Err == nil && a.Result != nil {
+			return true
 		}
-		a := j.results[0]
-		return report.WritePlan(st, j.c.Profile, a.Result, a.Err, s.sys)
-	})
+	}
+	return false
 }
 
 // planErrorText words a job's error for the terminal, in the user's units.
@@ -384,12 +425,7 @@ func printPlanSummary(w io.Writer, j *job, u units.System, dir string) {
 	}
 	fmt.Fprintf(w, "\n%s: %d stations, %s long, earthwork on %s -> %s\n", name, len(p.Stations),
 		alignment.FormatChainage(length, u == units.US), ground, textsafe.Terminal(dir))
-	r := a.Result
-	if a.Err != nil {
-		fmt.Fprintf(w, "  INFEASIBLE: %s\n", report.ErrorText(a.Err, u))
-		printBaselines(w, r, u)
-		return
-	}
+	r := a.Result // feasible: write refused a failed plan
 	t := r.Totals
 	vu := u.VolumeUnit()
 	fmt.Fprintf(w, "  optimised:     %3d drops, cut %10.0f %s, fill %10.0f %s, total cost %12.0f\n",

@@ -13,7 +13,6 @@ import (
 	"canalstep/report/outdir"
 	"canalstep/report/runner"
 	"canalstep/report/textsafe"
-	"canalstep/report/units"
 	"canalstep/terrain"
 )
 
@@ -63,8 +62,8 @@ func runProfile(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	n := len(sc.Alignments)
 	profiles := make([]*alignment.Profile, n)
 	errs := make([]error, n)
-	blocks := 0
 	err = runner.Each(ctx, n, *jobs, dem0, g.openDEM, func(i int, d *terrain.DEM) {
+		defer recoverJob(&errs[i])
 		o := g.corridorOptions()
 		a := sc.Alignments[i]
 		if a.Overrides.CurveRadius != nil {
@@ -80,13 +79,14 @@ func runProfile(ctx context.Context, args []string, stdout, stderr io.Writer) er
 		errs[i] = err
 	})
 	var names []string
-	failed := 0
+	fail := &runFailure{total: n}
 	for i, p := range profiles {
 		a := sc.Alignments[i]
 		names = append(names, alignment.SafeName(a.Name))
 		if errs[i] != nil {
-			failed++
-			fmt.Fprintf(stdout, "%s: FAILED: %s\n", textsafe.Terminal(a.Name), oneLineError(errs[i]))
+			text := textsafe.Clip(oneLineError(errs[i]), 400)
+			fail.add(a.Name, text, errs[i])
+			fmt.Fprintf(stdout, "%s: FAILED: %s\n", textsafe.Terminal(a.Name), text)
 			continue
 		}
 		if p == nil {
@@ -97,14 +97,14 @@ func runProfile(ctx context.Context, args []string, stdout, stderr io.Writer) er
 			textsafe.Terminal(p.Name), len(p.Stations), sys.Station(p.Stations[0].Chainage), sys.Station(p.Stations[len(p.Stations)-1].Chainage),
 			sys.Length(lo), sys.Length(hi), sys.LengthUnit(), textsafe.Terminal(filepath.Join(*out, p.Folder)))
 	}
-	_ = blocks
 	fmt.Fprintf(stdout, "DEM %s: %d×%d cells, %s interpolation\n", textsafe.Terminal(info.Path), info.Width, info.Height, info.Method)
 	if err != nil {
 		fmt.Fprintln(stdout, dir.Report(names, true))
 		return err
 	}
-	if failed > 0 {
-		return fmt.Errorf("%d of %d alignments failed; %s", failed, n, dir.Report(names, false))
+	if fail.failed > 0 {
+		fail.written = dir.Report(names, false)
+		return fail
 	}
 	return nil
 }
@@ -130,5 +130,3 @@ func minMax(vs []float64) (lo, hi float64) {
 	}
 	return lo, hi
 }
-
-var _ units.System

@@ -3,18 +3,16 @@ package main
 import (
 	"bytes"
 	"context"
-	"encoding/csv"
 	"fmt"
 	"math"
 	"os"
 	"os/exec"
 	"path/filepath"
-	"strconv"
 	"strings"
 	"testing"
 
-	"canalstep/testdata/reftool"
 	"canalstep/terrain"
+	"canalstep/testdata/reftool"
 )
 
 // Test fixtures: a planar DEM in UTM zone 34N (EPSG:32634), 10 m cells,
@@ -79,38 +77,6 @@ func lonLatLine(t *testing.T, name string, pts [][2]float64) string {
 	return b.String()
 }
 
-func writeFile(t *testing.T, dir, name, body string) string {
-	t.Helper()
-	p := filepath.Join(dir, name)
-	if err := os.WriteFile(p, []byte(body), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	return p
-}
-
-func readCSV(t *testing.T, path string) [][]string {
-	t.Helper()
-	f, err := os.Open(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer f.Close()
-	rows, err := csv.NewReader(f).ReadAll()
-	if err != nil {
-		t.Fatal(err)
-	}
-	return rows
-}
-
-func num(t *testing.T, s string) float64 {
-	t.Helper()
-	v, err := strconv.ParseFloat(s, 64)
-	if err != nil {
-		t.Fatalf("not a number: %q", s)
-	}
-	return v
-}
-
 // TestProfilePlanar runs `canalstep profile` end to end on the planar DEM
 // with a lon/lat alignment: stations at the spacing, every vertex and the
 // end; ground equal to the plane (bilinear is exact on a plane: analytic
@@ -129,9 +95,10 @@ func TestProfilePlanar(t *testing.T) {
 	}
 	folder := filepath.Join(out, "Head_race_reach_1")
 	rows := readCSV(t, filepath.Join(folder, "ground.csv"))
-	if got, want := strings.Join(rows[0], ","), "station,chainage,x,y,lon,lat,ground"; got != want {
+	if got, want := strings.Join(rows[0], ","), "station,chainage_m,easting,northing,lon,lat,ground_m"; got != want {
 		t.Fatalf("header %q, want %q", got, want)
 	}
+	// easting and northing are in the work CRS, here the DEM's EPSG:32634.
 	rows = rows[1:]
 	// 1500 m at 25 m: 61 stations; the vertices at 500 and 1000 m fall on the grid.
 	if len(rows) != 61 {
@@ -210,7 +177,8 @@ func TestProfileGeographicLengthAgreesWithGeod(t *testing.T) {
 }
 
 // TestProfileBadInput checks that each kind of bad input gives one clear
-// line with the right exit status and leaves no output folder behind.
+// line on stderr with exit status 2 (bad input: a path, a file, a value, an
+// alignment the DEM cannot serve) and leaves no alignment folder behind.
 func TestProfileBadInput(t *testing.T) {
 	dir := t.TempDir()
 	dem := writePlaneDEM(t, dir, 500900, 4499000, 501000, 4499100)
@@ -222,47 +190,36 @@ func TestProfileBadInput(t *testing.T) {
 		t.Fatal(err)
 	}
 	cases := []struct {
-		name     string
-		args     []string
-		alnBody  string
-		wantCode int
-		wantMsg  string
+		name    string
+		args    []string
+		alnBody string
+		wantMsg string
 	}{
-		{"missing DEM", []string{"--dem", filepath.Join(dir, "nope.tif")}, inside, 1, "nope.tif"},
-		{"DEM without CRS", []string{"--dem", noCRS}, inside, 1, "coordinate reference system"},
-		{"not JSON", []string{"--dem", dem}, "this is not json", 1, "not valid JSON"},
-		{"no line", []string{"--dem", dem}, `{"type":"Point","coordinates":[21,40]}`, 1, "no LineString"},
-		{"one point", []string{"--dem", dem}, `{"type":"LineString","coordinates":[[21,40],[21,40]]}`, 1, "fewer than two distinct points"},
-		{"disjoint parts", []string{"--dem", dem}, `{"type":"MultiLineString","coordinates":[[[21,40],[21.001,40]],[[21.01,40],[21.02,40]]]}`, 1, "do not join"},
-		{"outside DEM", []string{"--dem", dem}, outside, 1, "leaves the DEM at chainage"},
-		{"over nodata", []string{"--dem", dem}, overNoData, 1, "without data at chainage"},
-		{"unknown EPSG", []string{"--dem", dem, "--alignment-crs", "EPSG:999999"}, inside, 2, "EPSG:999999"},
-		{"zero spacing", []string{"--dem", dem, "--spacing", "0"}, inside, 2, "--spacing must be a positive"},
-		{"spacing not a number", []string{"--dem", dem, "--spacing", "ten"}, inside, 2, "spacing"},
-		{"projected coordinates without CRS", []string{"--dem", dem}, `{"type":"LineString","coordinates":[[500200,4499800],[500600,4499800]]}`, 2, "--alignment-crs"},
+		{"missing DEM", []string{"--dem", filepath.Join(dir, "nope.tif")}, inside, "nope.tif"},
+		{"DEM without CRS", []string{"--dem", noCRS}, inside, "coordinate reference system"},
+		{"not JSON", []string{"--dem", dem}, "this is not json", "not valid JSON"},
+		{"no line", []string{"--dem", dem}, `{"type":"Point","coordinates":[21,40]}`, "no LineString"},
+		{"one point", []string{"--dem", dem}, `{"type":"LineString","coordinates":[[21,40],[21,40]]}`, "fewer than two distinct points"},
+		{"disjoint parts", []string{"--dem", dem}, `{"type":"MultiLineString","coordinates":[[[21,40],[21.001,40]],[[21.01,40],[21.02,40]]]}`, "do not join"},
+		{"outside DEM", []string{"--dem", dem}, outside, "leaves the DEM at chainage 2+810.00 to 3+300.00"},
+		{"over nodata", []string{"--dem", dem}, overNoData, "without valid data at chainage 0+100.00 to 0+200.00"},
+		{"unknown EPSG", []string{"--dem", dem, "--alignment-crs", "EPSG:999999"}, inside, "EPSG:999999"},
+		{"zero spacing", []string{"--dem", dem, "--spacing", "0"}, inside, "--spacing\" flag: 0 is outside [0.01, 10000] m"},
+		{"spacing not a number", []string{"--dem", dem, "--spacing", "ten"}, inside, "\"ten\" is not a finite number"},
+		{"projected coordinates without CRS", []string{"--dem", dem}, `{"type":"LineString","coordinates":[[500200,4499800],[500600,4499800]]}`, "--alignment-crs"},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			sub := t.TempDir()
 			aln := writeFile(t, sub, "a.geojson", c.alnBody)
 			out := filepath.Join(sub, "out")
-			args := append([]string{"profile", "--alignment", aln, "--out", out}, c.args...)
-			var stdout, stderr bytes.Buffer
-			err := run(context.Background(), args, &stdout, &stderr)
-			if err == nil {
-				t.Fatalf("no error; stdout:\n%s", stdout.String())
+			stdout, stderr, code := runCmd(t, append([]string{"profile", "--alignment", aln, "--out", out}, c.args...)...)
+			t.Log(stderr)
+			if code != 2 {
+				t.Errorf("exit status %d, want 2; stdout:\n%s", code, stdout)
 			}
-			if got := exitCode(err); got != c.wantCode {
-				t.Errorf("exit status %d, want %d (%v)", got, c.wantCode, err)
-			}
-			msg := oneLine(err)
-			t.Log(msg)
-			if !strings.Contains(msg, c.wantMsg) {
-				t.Errorf("message %q does not contain %q", msg, c.wantMsg)
-			}
-			if _, err := os.Stat(out); !os.IsNotExist(err) {
-				t.Errorf("output folder %s exists after a failed run", out)
-			}
+			checkOneLine(t, stderr, c.wantMsg)
+			checkNoPartial(t, out)
 		})
 	}
 }

@@ -101,6 +101,44 @@ type interrupted struct{ sig syscall.Signal }
 
 func (e interrupted) Error() string { return "interrupted by " + e.sig.String() }
 
+// recoverJob turns a panic in one alignment's job, which runs on a worker
+// goroutine that run's own recovery does not cover, into that job's
+// internalError; deferred by every job.
+func recoverJob(err *error) {
+	if p := recover(); p != nil {
+		*err = internalError{fmt.Sprint(p)}
+	}
+}
+
+// runFailure is the error of a run in which some alignments failed (the
+// others were written): one line naming the first failure and what was and
+// was not written. Its exit status is the most severe of its causes'
+// (exitCode looks through Unwrap): 3 for a bug, 2 for bad input, else 1.
+type runFailure struct {
+	failed, total int
+	first         string // "NAME: what went wrong" of the first failure
+	written       string // outdir.Dir.Report
+	causes        []error
+}
+
+func (e *runFailure) Error() string {
+	if e.failed == 1 {
+		return e.first + "; " + e.written
+	}
+	return fmt.Sprintf("%d of %d alignments failed, the first %s; %s", e.failed, e.total, e.first, e.written)
+}
+
+func (e *runFailure) Unwrap() []error { return e.causes }
+
+// add records that alignment name failed with err, worded as text.
+func (e *runFailure) add(name, text string, err error) {
+	if e.failed == 0 {
+		e.first = textsafe.Terminal(name) + ": " + text
+	}
+	e.failed++
+	e.causes = append(e.causes, err)
+}
+
 // usageError marks a mistake in the command line: exit status 2.
 type usageError struct{ err error }
 

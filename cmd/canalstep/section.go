@@ -14,31 +14,67 @@ import (
 
 	flag "github.com/spf13/pflag"
 
+	"canalstep/planner"
 	"canalstep/planner/hydraulics"
 	"canalstep/report"
+	"canalstep/report/units"
 )
 
-// canalFlags are the flags that describe a trapezoidal canal reach, in the
-// units of --units (lengths in m or ft).
+// canalFlags are the flags that describe a trapezoidal canal reach. They
+// read the --units unit and hold SI (units.Value).
 type canalFlags struct {
-	bottomWidth, sideSlope, roughness, slope float64
+	bottomWidth, sideSlope, roughness, slope float64 // m, H:V, Manning n, m/m
 }
 
-func (c *canalFlags) register(fs *flag.FlagSet, what string) {
-	fs.Float64Var(&c.bottomWidth, "bottom-width", 0, "bed width of the "+what+" (m, or ft with --units us)")
-	fs.Float64Var(&c.sideSlope, "side-slope", 0, "side slope of the "+what+", horizontal per vertical (0 = rectangle)")
-	fs.Float64Var(&c.roughness, "roughness", 0, "Manning n of the "+what+" (e.g. 0.015 concrete, 0.025 earth; Chow 1959 Table 5-6)")
-	fs.Float64Var(&c.slope, "slope", 0, "bed slope of the "+what+", m/m")
+func (c *canalFlags) register(n numberFlags, what string) {
+	n.add(&c.bottomWidth, units.Length, "bottom-width", positive("bottom_width"), "bed width of the "+what+" (m, or ft with --units us)")
+	n.add(&c.sideSlope, units.Ratio, "side-slope", planner.Ranges["side_slope"], "side slope of the "+what+", horizontal per vertical (0 = rectangle)")
+	n.add(&c.roughness, units.Ratio, "roughness", planner.Ranges["roughness"], "Manning n of the "+what+" (e.g. 0.015 concrete, 0.025 earth; Chow 1959 Table 5-6)")
+	n.add(&c.slope, units.Ratio, "slope", planner.Ranges["grade"], "bed slope of the "+what+", m/m")
 }
 
-// channel converts the flags to an SI channel; lengthM is one input length
-// unit in metres.
-func (c canalFlags) channel(lengthM float64) hydraulics.Channel {
+// channel returns the SI channel of the flags.
+func (c canalFlags) channel() hydraulics.Channel {
 	return hydraulics.Channel{
-		Section: hydraulics.Section{BottomWidth: c.bottomWidth * lengthM, SideSlope: c.sideSlope},
+		Section: hydraulics.Section{BottomWidth: c.bottomWidth, SideSlope: c.sideSlope},
 		N:       c.roughness, Slope: c.slope,
 	}
 }
+
+// numberFlags registers the number flags of section and drop: each reads
+// a number in the --units unit, stores it in SI and refuses a value outside
+// its physical range, which its help text states.
+type numberFlags struct {
+	fs  *flag.FlagSet
+	sys *units.System
+}
+
+func (n numberFlags) add(p *float64, q units.Quantity, name string, r planner.Range, usage string) {
+	v := units.NewValue(p, q, n.sys).Within(r.Min, r.Max, r.MinExclusive)
+	n.fs.Var(v, name, usage+"; "+v.RangeText())
+}
+
+// positive is the planner's range of key without its minimum (zero).
+func positive(key string) planner.Range {
+	r := planner.Ranges[key]
+	r.MinExclusive = true
+	return r
+}
+
+// Ranges of the section and drop flags the planner has no range for:
+// wide physical bounds that catch typing mistakes and hostile input, not
+// design guidance (common practice, no source).
+var (
+	kennedyRange    = planner.Range{Min: 0, Max: 5, MinExclusive: true}    // Kennedy's m; real soils 0.7 to 1.3 (from memory)
+	froudeRange     = planner.Range{Min: 0, Max: 10, MinExclusive: true}   // a warning threshold
+	coeffRange      = planner.Range{Min: 0, Max: 10, MinExclusive: true}   // USBR freeboard C, m (1.5 to 2.5 ft in the rule)
+	freeboardRange  = planner.Range{Min: 0, Max: 20, MinExclusive: true}   // m: a fixed freeboard, when given
+	lengthRange     = planner.Range{Min: 0, Max: 1e6, MinExclusive: true}  // m: a profile's length
+	stepRange       = planner.Range{Min: 0, Max: 1e5, MinExclusive: true}  // m: a profile's station interval
+	holdRange       = planner.Range{Min: 0, Max: 3, MinExclusive: true}    // tailwater / sequent depth the floor is set for
+	structureRange  = planner.Range{Min: 0, Max: 20}                       // m: a crest raise or basin depression, as a drop height
+	notchCoeffRange = planner.Range{Min: 0, Max: 2, MinExclusive: true}    // discharge coefficient of a notch
+)
 
 // outputFlags are the --units and --json flags of a command that prints
 // results.
@@ -56,6 +92,7 @@ func (o *outputFlags) parseCommand(fs *flag.FlagSet, args []string, stdout io.Wr
 	fs.Usage = func() {
 		fmt.Fprintf(stdout, "Usage: %s\n\n%s\n\nFlags:\n", usageLine, about)
 		fs.PrintDefaults()
+		fmt.Fprintf(stdout, "\n%s\n", exitCodeHelp)
 	}
 	if ok, err := parseFlags(fs, args); !ok {
 		return u, false, err
@@ -74,43 +111,6 @@ func requireFlags(fs *flag.FlagSet, names ...string) error {
 	}
 	return nil
 }
-
-// checkNumber returns a usage error when v is not finite, or not positive
-// (allowZero: negative).
-func checkNumber(name string, v float64, allowZero bool) error {
-	switch {
-	case math.IsNaN(v) || math.IsInf(v, 0):
-		return usagef("--%s must be a finite number, got %g", name, v)
-	case allowZero && v < 0:
-		return usagef("--%s must be zero or positive, got %g", name, v)
-	case !allowZero && v <= 0:
-		return usagef("--%s must be positive, got %g", name, v)
-	}
-	return nil
-}
-
-// checkNumbers validates the float flags that were given: those named in
-// positive must be above zero, those in nonNegative zero or above.
-func checkNumbers(fs *flag.FlagSet, positive, nonNegative []string) error {
-	for i, names := range [][]string{positive, nonNegative} {
-		for _, name := range names {
-			if !fs.Changed(name) {
-				continue
-			}
-			v, err := fs.GetFloat64(name)
-			if err != nil {
-				return err
-			}
-			if err := checkNumber(name, v, i == 1); err != nil {
-				return err
-			}
-		}
-	}
-	return nil
-}
-
-// canalPositive and canalNonNegative name the canal flags for checkNumbers.
-var canalPositive, canalNonNegative = []string{"bottom-width", "roughness", "slope"}, []string{"side-slope"}
 
 // sig6 is a float64 that JSON-encodes with six significant figures, so that
 // golden files do not depend on the last bits of a platform's arithmetic.
@@ -172,24 +172,32 @@ type profileRow struct {
 // runSection implements `canalstep section`: uniform flow in one canal
 // section, on a given slope or on the steepest slope a velocity limit allows.
 func runSection(_ context.Context, args []string, stdout, _ io.Writer) error {
+	sys, _, err := preParse(args)
+	if err != nil {
+		return err
+	}
 	fs := newFlagSet("section", stdout)
+	n := numberFlags{fs, &sys}
 	var cf canalFlags
-	flow := fs.Float64("flow", 0, "design discharge (m³/s, or cfs with --units us)")
-	cf.register(fs, "canal")
-	maxV := fs.Float64("max-velocity", 0, "permissible (non-erosive) mean velocity; replaces --slope: the design slope is the steepest that keeps V at or below it (m/s or ft/s; e.g. Fortier & Scobey 1926)")
-	minV := fs.Float64("min-velocity", 0, "non-silting mean velocity (m/s or ft/s); gives min_slope, or a warning with --slope")
-	kennedy := fs.Float64("kennedy-m", 0, "use Kennedy's non-silting velocity 0.55·m·y^0.64 (SI) with critical velocity ratio m instead of --min-velocity")
-	maxFroude := fs.Float64("max-froude", hydraulics.NearCriticalFroude, "warn when the Froude number exceeds this (0.86: Clark County RFCD drainage manual §1100, via a secondary source)")
-	fbFixed := fs.Float64("freeboard", 0, "fixed freeboard (m or ft) instead of the USBR rule")
-	fbC := fs.Float64("freeboard-c", 0, "fixed USBR coefficient C in F = sqrt(C·y) (m or ft) instead of interpolating it from the discharge")
-	fbMin := fs.Float64("min-freeboard", 0, "lower bound on the freeboard (m or ft)")
+	var flow, maxV, minV, kennedy, fbFixed, fbC, fbMin float64
+	maxFroude, profLen, profStep := hydraulics.NearCriticalFroude, 2000.0, 100.0
+	L, V := units.Length, units.Velocity
+	n.add(&flow, units.Flow, "flow", planner.Ranges["flow"], "design discharge (m³/s, or cfs with --units us)")
+	cf.register(n, "canal")
+	n.add(&maxV, V, "max-velocity", planner.Ranges["max_velocity"], "permissible (non-erosive) mean velocity; replaces --slope: the design slope is the steepest that keeps V at or below it (m/s or ft/s; e.g. Fortier & Scobey 1926)")
+	n.add(&minV, V, "min-velocity", planner.Ranges["min_velocity"], "non-silting mean velocity (m/s or ft/s); gives min_slope, or a warning with --slope")
+	n.add(&kennedy, units.Ratio, "kennedy-m", kennedyRange, "use Kennedy's non-silting velocity 0.55·m·y^0.64 (SI) with critical velocity ratio m instead of --min-velocity")
+	n.add(&maxFroude, units.Ratio, "max-froude", froudeRange, "warn when the Froude number exceeds this (0.86: Clark County RFCD drainage manual §1100, via a secondary source)")
+	n.add(&fbFixed, L, "freeboard", freeboardRange, "fixed freeboard (m or ft) instead of the USBR rule")
+	n.add(&fbC, L, "freeboard-c", coeffRange, "fixed USBR coefficient C in F = sqrt(C·y) (m or ft) instead of interpolating it from the discharge")
+	n.add(&fbMin, L, "min-freeboard", planner.Ranges["freeboard"], "lower bound on the freeboard (m or ft)")
 	profFrom := fs.String("profile-from", "", "also compute the water-surface profile upstream of a control holding this depth (m or ft), or 'critical' for a free overfall; standard step method")
-	profLen := fs.Float64("profile-length", 2000, "length of the profile upstream of the control (m or ft)")
-	profStep := fs.Float64("profile-step", 100, "station interval of the profile (m or ft)")
+	n.add(&profLen, L, "profile-length", lengthRange, "length of the profile upstream of the control (m or ft)")
+	n.add(&profStep, L, "profile-step", stepRange, "station interval of the profile (m or ft)")
 	var of outputFlags
 	u, ok, err := of.parseCommand(fs, args, stdout,
 		"canalstep section --flow Q --bottom-width B --side-slope Z --roughness N (--slope S | --max-velocity V) [--min-velocity V] [--units si|us] [--json]",
-		"Uniform flow in a trapezoidal canal: normal and critical depth, velocity, Froude number,\nfreeboard and bank height; with --max-velocity, the range of bed slopes the velocity limits allow.")
+		"Uniform flow in a trapezoidal canal: normal and critical depth, velocity, Froude number,\nfreeboard and bank height; with --max-velocity, the range of bed slopes the velocity limits allow.\nNumbers are in the --units unit; each flag's range is the physical range its value must lie in.")
 	if !ok {
 		return err
 	}
@@ -202,36 +210,31 @@ func runSection(_ context.Context, args []string, stdout, _ io.Writer) error {
 	if fs.Changed("min-velocity") && fs.Changed("kennedy-m") {
 		return usagef("section: give --min-velocity or --kennedy-m, not both")
 	}
-	if err := checkNumbers(fs,
-		append([]string{"flow", "max-velocity", "kennedy-m", "max-froude", "freeboard", "freeboard-c", "profile-length", "profile-step"}, canalPositive...),
-		append([]string{"min-velocity", "min-freeboard"}, canalNonNegative...)); err != nil {
-		return err
-	}
-	if fs.Changed("max-velocity") && fs.Changed("min-velocity") && *minV > *maxV {
-		return usagef("section: the permissible velocity --max-velocity %g is below the non-silting velocity --min-velocity %g; no slope can meet both", *maxV, *minV)
+	if fs.Changed("max-velocity") && fs.Changed("min-velocity") && minV > maxV {
+		return usagef("section: the permissible velocity --max-velocity %g is below the non-silting velocity --min-velocity %g; no slope can meet both", u.Velocity(maxV), u.Velocity(minV))
 	}
 
 	lm := unitLength(u)
 	c := hydraulics.SI()
-	ch := cf.channel(lm)
-	q := *flow * unitFlow(u)
+	ch := cf.channel()
+	q := flow
 	res := sectionResult{
 		Units: unitsName(u), LengthUnit: u.LengthUnit(), FlowUnit: flowUnit(u),
-		Flow: sig6(*flow), BottomWidth: sig6(cf.bottomWidth), SideSlope: sig6(cf.sideSlope), Roughness: sig6(cf.roughness),
+		Flow: sig6(u.FromSI(units.Flow, q)), BottomWidth: sig6(u.Length(cf.bottomWidth)), SideSlope: sig6(cf.sideSlope), Roughness: sig6(cf.roughness),
 	}
 	var yn float64
 	if fs.Changed("max-velocity") {
 		var lim hydraulics.SlopeLimits
 		if fs.Changed("kennedy-m") {
-			lim, err = hydraulics.KennedySlopeLimits(c, ch.Section, q, ch.N, *maxV*lm, *kennedy)
+			lim, err = hydraulics.KennedySlopeLimits(c, ch.Section, q, ch.N, maxV, kennedy)
 		} else {
-			lim, err = hydraulics.VelocityLimitedSlopes(c, ch.Section, q, ch.N, *maxV*lm, *minV*lm)
+			lim, err = hydraulics.VelocityLimitedSlopes(c, ch.Section, q, ch.N, maxV, minV)
 		}
 		if err != nil {
 			return sectionError(err)
 		}
 		ch.Slope, yn = lim.MaxSlope, lim.DepthAtMax
-		res.MaxVelocity, res.MaxSlope, res.MinSlope = sig6Ptr(*maxV), sig6Ptr(lim.MaxSlope), sig6Ptr(lim.MinSlope)
+		res.MaxVelocity, res.MaxSlope, res.MinSlope = sig6Ptr(u.Velocity(maxV)), sig6Ptr(lim.MaxSlope), sig6Ptr(lim.MinSlope)
 		if lim.VelocityAtMin > 0 {
 			res.MinVelocity = sig6Ptr(lim.VelocityAtMin / lm)
 		}
@@ -240,9 +243,9 @@ func runSection(_ context.Context, args []string, stdout, _ io.Writer) error {
 			return sectionError(err)
 		}
 		v := hydraulics.Velocity(ch.Section, q, yn)
-		minVel := *minV * lm
+		minVel := minV
 		if fs.Changed("kennedy-m") {
-			minVel = hydraulics.KennedyVelocity(*kennedy, yn)
+			minVel = hydraulics.KennedyVelocity(kennedy, yn)
 		}
 		if minVel > 0 {
 			res.MinVelocity = sig6Ptr(minVel / lm)
@@ -257,7 +260,7 @@ func runSection(_ context.Context, args []string, stdout, _ io.Writer) error {
 	}
 	s := ch.Section
 	f := hydraulics.Froude(c, s, q, yn)
-	rule := hydraulics.FreeboardRule{Fixed: *fbFixed * lm, C: *fbC * lm, Min: *fbMin * lm}
+	rule := hydraulics.FreeboardRule{Fixed: fbFixed, C: fbC, Min: fbMin}
 	fb := hydraulics.Freeboard(q, yn, rule)
 	res.Slope = sig6(ch.Slope)
 	res.NormalDepth, res.CriticalDepth = sig6(yn/lm), sig6(yc/lm)
@@ -269,12 +272,12 @@ func runSection(_ context.Context, args []string, stdout, _ io.Writer) error {
 	res.Freeboard, res.BankHeight = sig6(fb/lm), sig6((yn+fb)/lm)
 	res.FreeboardRule = freeboardRuleText(rule, q, u)
 	if *profFrom != "" {
-		if err := addProfile(&res, c, ch, q, yc, yn+fb, *profFrom, *profLen*lm, *profStep*lm, u); err != nil {
+		if err := addProfile(&res, c, ch, q, yc, yn+fb, *profFrom, profLen, profStep, u); err != nil {
 			return err
 		}
 	}
-	if f > *maxFroude {
-		res.Warnings = append(res.Warnings, fmt.Sprintf("Froude number %.2f is above %.2f: near-critical flow is wavy and unstable; flatten the slope or widen the bed", f, *maxFroude))
+	if f > maxFroude {
+		res.Warnings = append(res.Warnings, fmt.Sprintf("Froude number %.2f is above %.2f: near-critical flow is wavy and unstable; flatten the slope or widen the bed", f, maxFroude))
 	}
 	if res.Warnings == nil {
 		res.Warnings = []string{}

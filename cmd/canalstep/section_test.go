@@ -1,26 +1,12 @@
 package main
 
 import (
-	"bytes"
-	"context"
 	"encoding/json"
 	"math"
 	"strconv"
 	"strings"
 	"testing"
 )
-
-// runCmd runs canalstep in-process and returns its stdout, stderr and exit
-// status.
-func runCmd(t *testing.T, args ...string) (string, string, int) {
-	t.Helper()
-	var out, errb bytes.Buffer
-	err := run(context.Background(), args, &out, &errb)
-	if err != nil {
-		errb.WriteString(oneLine(err))
-	}
-	return out.String(), errb.String(), exitCode(err)
-}
 
 // runJSON runs a command with --json and decodes its output.
 func runJSON(t *testing.T, args ...string) map[string]any {
@@ -122,14 +108,21 @@ func TestSectionExitCodes(t *testing.T) {
 		{"slope", with("--slope", "0.0004"), 0, "normal depth"},
 		{"velocity limits", with("--max-velocity", "1.07", "--min-velocity", "0.6"), 0, "flattest slope"},
 		{"help", []string{"section", "--help"}, 0, "Usage: canalstep section"},
-		{"negative flow", []string{"section", "--flow", "-1", "--bottom-width", "3", "--side-slope", "1.5", "--roughness", "0.025", "--slope", "0.001"}, 2, "--flow must be positive"},
+		{"negative flow", []string{"section", "--flow", "-1", "--bottom-width", "3", "--side-slope", "1.5", "--roughness", "0.025", "--slope", "0.001"}, 2, "-1 is outside (0, 10000] m³/s"},
 		{"unparseable flow", []string{"section", "--flow", "ten", "--bottom-width", "3", "--side-slope", "1.5", "--roughness", "0.025", "--slope", "0.001"}, 2, "invalid argument"},
 		{"NaN flow", []string{"section", "--flow", "NaN", "--bottom-width", "3", "--side-slope", "1.5", "--roughness", "0.025", "--slope", "0.001"}, 2, "finite"},
-		{"zero width", []string{"section", "--flow", "10", "--bottom-width", "0", "--side-slope", "1.5", "--roughness", "0.025", "--slope", "0.001"}, 2, "--bottom-width must be positive"},
-		{"negative side slope", []string{"section", "--flow", "10", "--bottom-width", "3", "--side-slope", "-1", "--roughness", "0.025", "--slope", "0.001"}, 2, "--side-slope must be zero or positive"},
-		{"zero roughness", []string{"section", "--flow", "10", "--bottom-width", "3", "--side-slope", "1.5", "--roughness", "0", "--slope", "0.001"}, 2, "--roughness must be positive"},
-		{"zero slope", with("--slope", "0"), 2, "--slope must be positive"},
-		{"adverse slope", with("--slope", "-0.001"), 2, "--slope must be positive"},
+		{"zero width", []string{"section", "--flow", "10", "--bottom-width", "0", "--side-slope", "1.5", "--roughness", "0.025", "--slope", "0.001"}, 2, "\"--bottom-width\" flag: 0 is outside (0, 500] m"},
+		{"negative side slope", []string{"section", "--flow", "10", "--bottom-width", "3", "--side-slope", "-1", "--roughness", "0.025", "--slope", "0.001"}, 2, "\"--side-slope\" flag: -1 is outside [0, 20]"},
+		{"zero roughness", []string{"section", "--flow", "10", "--bottom-width", "3", "--side-slope", "1.5", "--roughness", "0", "--slope", "0.001"}, 2, "\"--roughness\" flag: 0 is outside (0, 0.2]"},
+		{"zero slope", with("--slope", "0"), 2, "\"--slope\" flag: 0 is outside (0, 0.2]"},
+		{"adverse slope", with("--slope", "-0.001"), 2, "\"--slope\" flag: -0.001 is outside (0, 0.2]"},
+		// Absurd finite values (issue 8) are refused with the range, in the
+		// --units unit: 10,000 m³/s is 353,147 cfs (1 cfs = 0.3048³ m³/s).
+		{"absurd flow", []string{"section", "--flow", "1e300", "--bottom-width", "3", "--side-slope", "1.5", "--roughness", "0.025", "--slope", "0.001"}, 2, "1e300 is outside (0, 10000] m³/s"},
+		{"absurd flow in cfs", []string{"section", "--units", "us", "--flow", "1e300", "--bottom-width", "3", "--side-slope", "1.5", "--roughness", "0.025", "--slope", "0.001"}, 2, "1e300 is outside (0, 353147] cfs"},
+		{"absurd width", []string{"section", "--flow", "10", "--bottom-width", "1e300", "--side-slope", "1.5", "--roughness", "0.025", "--slope", "0.001"}, 2, "1e300 is outside (0, 500] m"},
+		{"absurd profile length", with("--slope", "0.001", "--profile-from", "critical", "--profile-length", "1e300"), 2, "--profile-length"},
+		{"infinite freeboard", with("--slope", "0.001", "--freeboard", "Inf"), 2, "not a finite number"},
 		{"slope and velocity", with("--slope", "0.001", "--max-velocity", "1"), 2, "either --slope or --max-velocity"},
 		{"neither", base, 2, "either --slope or --max-velocity"},
 		{"missing flow", []string{"section", "--bottom-width", "3", "--side-slope", "1.5", "--roughness", "0.025", "--slope", "0.001"}, 2, "missing --flow"},
@@ -151,8 +144,11 @@ func TestSectionExitCodes(t *testing.T) {
 			if got := out + errs; !strings.Contains(got, tc.contains) {
 				t.Errorf("output does not contain %q:\n%s", tc.contains, got)
 			}
-			if tc.code != 0 && (strings.Count(errs, "\n") > 0 || out != "") {
-				t.Errorf("error is not one line on stderr alone: stdout %q stderr %q", out, errs)
+			if tc.code != 0 {
+				checkOneLine(t, errs, tc.contains)
+				if out != "" {
+					t.Errorf("error case wrote to stdout: %q", out)
+				}
 			}
 		})
 	}
