@@ -44,18 +44,22 @@ func chromium(t *testing.T, bin, path string, extra ...string) (stdout, stderr [
 	return out.Bytes(), errb.Bytes(), netlog
 }
 
-// pageTrouble matches the lines of Chromium's log that concern the page:
-// every console message (the report has no script, so any is a script
-// error, a Content-Security-Policy report of a blocked load or a failed
-// load), uncaught errors, network errors and refused loads. Chromium's own
-// noise on a headless machine (no D-Bus, no GPU, sandbox and VA-API
-// warnings) matches none of these and is ignored.
-var pageTrouble = regexp.MustCompile(`:CONSOLE[:(]|Uncaught|net::ERR_|Refused to (load|execute|apply|connect)|Failed to load resource|violates the following Content Security Policy`)
+// Lines of Chromium's log that concern the page. Every console message
+// does (":CONSOLE"): the report has no script, so any is a script error
+// ("Uncaught ..."), a Content-Security-Policy report of a blocked load or
+// a failed load. Other lines count when they name the page's URL and say
+// a load failed or was refused. Chromium's own noise on a headless machine
+// (no D-Bus, no GPU, sandbox and VA-API warnings, and errors of its own
+// background requests, which name no page) is ignored.
+var (
+	consoleLine = regexp.MustCompile(`:CONSOLE[:(]|Uncaught`)
+	loadTrouble = regexp.MustCompile(`net::ERR_|Refused to (load|execute|apply|connect)|Failed to load resource|violates the following Content Security Policy`)
+)
 
-func troubleLines(stderr []byte) []string {
+func troubleLines(stderr []byte, page string) []string {
 	var out []string
 	for _, l := range strings.Split(string(stderr), "\n") {
-		if pageTrouble.MatchString(l) {
+		if consoleLine.MatchString(l) || (loadTrouble.MatchString(l) && strings.Contains(l, "file://"+page)) {
 			out = append(out, l)
 		}
 	}
@@ -138,7 +142,7 @@ func TestBrowser(t *testing.T) {
 		if bytes.Contains(bytes.ToLower(dom), []byte("<script")) {
 			t.Error("the DOM has a script element")
 		}
-		for _, l := range troubleLines(stderr) {
+		for _, l := range troubleLines(stderr, page) {
 			t.Errorf("chromium: %s", l)
 		}
 		for _, u := range pageRequests(t, netlog) {
@@ -149,7 +153,7 @@ func TestBrowser(t *testing.T) {
 		t.Parallel()
 		shot := filepath.Join(t.TempDir(), "report.png")
 		_, stderr, _ := chromium(t, bin, page, "--screenshot="+shot, "--window-size=1280,2000", "--hide-scrollbars")
-		for _, l := range troubleLines(stderr) {
+		for _, l := range troubleLines(stderr, page) {
 			t.Errorf("chromium: %s", l)
 		}
 		fh, err := os.Open(shot)
@@ -205,7 +209,7 @@ func TestBrowser(t *testing.T) {
 			t.Fatal(err)
 		}
 		_, stderr, netlog := chromium(t, bin, bad, "--dump-dom")
-		if len(troubleLines(stderr)) == 0 {
+		if len(troubleLines(stderr, bad)) == 0 {
 			t.Errorf("the log check missed the control page's script error:\n%s", stderr)
 		}
 		if len(pageRequests(t, netlog)) == 0 {
