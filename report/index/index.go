@@ -16,7 +16,9 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"maps"
 	"math"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -152,7 +154,7 @@ func Rank(rows []Row) Ranks {
 		}
 	}
 	routes := map[string][]int{} // corridor -> the best row of each of its alignments
-	for _, name := range sortedKeys(ok) {
+	for _, name := range slices.Sorted(maps.Keys(ok)) {
 		idx := ok[name]
 		sort.Slice(idx, func(a, b int) bool { return better(idx[a], idx[b]) })
 		for k, i := range idx {
@@ -434,15 +436,5 @@ func (ix *Index) Alternatives() []string {
 			out = append(out, r.Alternative)
 		}
 	}
-	return out
-}
-
-// sortedKeys returns m's keys in order.
-func sortedKeys[V any](m map[string]V) []string {
-	out := make([]string, 0, len(m))
-	for k := range m {
-		out = append(out, k)
-	}
-	sort.Strings(out)
 	return out
 }
