@@ -32,6 +32,8 @@ func commands() []command {
 		{"drop", "straight drop with stilling basin: Rand geometry, jump, basin, outlet check", runDrop},
 		{"plan", "least-cost drop placement on the real ground, beside the even-spacing method", runPlan},
 		{"compare", "plan several drop-height sets and compare earthwork and cost", runCompare},
+		{"batch", "many alignments x drop-height alternatives: isolated jobs, index, resume, shards", runBatch},
+		{"merge", "combine the shard folders of one batch into one folder and index", runMerge},
 		{"demo", "build the fictional demo scheme on generated terrain and run canalstep on it", runDemo},
 	}
 }
