@@ -12,6 +12,7 @@ import (
 	"os"
 	"path/filepath"
 	"sort"
+	"strconv"
 	"strings"
 	"syscall"
 	"testing"
@@ -22,7 +23,7 @@ import (
 	"canalstep/terrain"
 )
 
-// The batch tests run on the demo DEM (terrain.SyntheticFan(7)) with the
+// The batch tests run on the demo DEM (terrain.SyntheticFan(7), demoDEM) with the
 // head reaches of the demo branches (their first two vertices: 50 to 60
 // stations at 10 m), so that each batch stays short under -race. The
 // design values are the demo's (demo.go), not a reference case: these
@@ -30,16 +31,6 @@ import (
 // resume, interrupt), not hydraulics, which the planner's tests check.
 
 func init() { outNoSync = true } // the tests check bytes, not durability on power loss
-
-// batchDEM writes the demo DEM into dir and returns its path.
-func batchDEM(t testing.TB, dir string) string {
-	t.Helper()
-	p := filepath.Join(dir, "dem.tif")
-	if err := terrain.WriteGeoTIFF(p, terrain.SyntheticFan(7)); err != nil {
-		t.Fatal(err)
-	}
-	return p
-}
 
 // batchLine is demo branch which cut to its first n vertices, as a GeoJSON
 // feature in EPSG:32634 named name with extra properties.
@@ -70,27 +61,19 @@ func writeBatchFile(t testing.TB, path string, v any) {
 	}
 }
 
-// inputsTime is the modification time the fixture gives its input files,
-// so that the inputs' date the job folders record does not depend on when
-// the test runs.
-var inputsTime = time.Date(2024, 5, 1, 12, 0, 0, 0, time.UTC)
-
-// batchFixture writes a batch into dir: the DEM, an alignment file with
-// two head reaches (two routes of corridor "Lateral L"; 4 jobs) and extra
-// features, and the job file (batchJobFile). It returns the job file.
+// batchFixture writes a batch into dir: an alignment file with two head
+// reaches (two routes of corridor "Lateral L"; 4 jobs) and extra features,
+// and the job file (batchJobFile) on the shared demo DEM. It returns the
+// job file. SOURCE_DATE_EPOCH fixes the inputs' date the job folders
+// record, which would otherwise be the day the demo DEM was written.
 func batchFixture(t testing.TB, dir string, extra []map[string]any, tables string) string {
 	t.Helper()
-	batchDEM(t, dir)
+	t.Setenv("SOURCE_DATE_EPOCH", "1714564800") // 2024-05-01 12:00 UTC
 	fs := []map[string]any{
 		batchLine(0, 2, "West head", map[string]any{"corridor": "Lateral L"}),
 		batchLine(1, 2, "Middle head", map[string]any{"corridor": "Lateral L"}),
 	}
 	writeBatchFile(t, filepath.Join(dir, "canals.geojson"), map[string]any{"type": "FeatureCollection", "features": append(fs, extra...)})
-	for _, f := range []string{"dem.tif", "canals.geojson"} {
-		if err := os.Chtimes(filepath.Join(dir, f), inputsTime, inputsTime); err != nil {
-			t.Fatal(err)
-		}
-	}
 	return batchJobFile(t, dir, tables)
 }
 
@@ -99,7 +82,7 @@ func batchFixture(t testing.TB, dir string, extra []map[string]any, tables strin
 func batchJobFile(t testing.TB, dir, tables string) string {
 	t.Helper()
 	job := `# test batch
-dem = "dem.tif"
+dem = ` + strconv.Quote(demoDEM(t)) + `
 alignments = ["canals.geojson"]
 alternatives = "1.0;1.0,1.5"
 
