@@ -796,7 +796,11 @@ func baseRow(jb *batchJob, j *job) index.Row {
 
 // reasonText words why a job did not plan, on one line in the user's units.
 func reasonText(err error, u units.System) string {
-	return textsafe.Clip(strings.Join(strings.Fields(report.ErrorText(err, u)), " "), 2000)
+	text := strings.Join(strings.Fields(report.ErrorText(err, u)), " ")
+	for _, kind := range []error{corridor.ErrInput, planner.ErrInput} {
+		text = strings.TrimPrefix(text, kind.Error()+": ") // the kind is the status's to say
+	}
+	return textsafe.Clip(text, 2000)
 }
 
 // planJob plans one alternative of a sampled alignment and commits its
