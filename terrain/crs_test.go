@@ -176,6 +176,46 @@ func TestTransformFailures(t *testing.T) {
 	}
 }
 
+// TestTransformSplit checks that a batch large enough to be cut into parts
+// transformed in parallel gives the same coordinates, bit for bit, as one
+// handle transforming it whole, and names its failed points by their place
+// in the whole batch, in both parts.
+func TestTransformSplit(t *testing.T) {
+	const n = 3*8192 + 17
+	x0, y0 := make([]float64, n), make([]float64, n)
+	for i := range x0 {
+		x0[i], y0[i] = 14+2*float64(i)/n, 36+float64(i%1000)/1000
+	}
+	bad := []int{5, n/2 + 3, n - 1} // one in the first part, one in the second
+	for _, i := range bad {
+		y0[i] = 95 // latitude 95° is impossible
+	}
+	run := func(limit int) ([]float64, []float64, error) {
+		tr, err := terrain.NewTransform(terrain.LonLat, "EPSG:32633")
+		if err != nil {
+			t.Fatal(err)
+		}
+		defer tr.Close()
+		terrain.SetHandleLimit(tr, limit)
+		xs, ys := slices.Clone(x0), slices.Clone(y0)
+		return xs, ys, tr.Transform(xs, ys)
+	}
+	x1, y1, err1 := run(1)
+	x2, y2, err2 := run(4)
+	for _, err := range []error{err1, err2} {
+		var te *terrain.TransformError
+		if !errors.As(err, &te) || !slices.Equal(te.Indices, bad) || te.Total != n {
+			t.Fatalf("error %v, want points %v of %d failed", err, bad, n)
+		}
+	}
+	for i := range x1 {
+		same := func(a, b float64) bool { return a == b || math.IsNaN(a) && math.IsNaN(b) }
+		if !same(x1[i], x2[i]) || !same(y1[i], y2[i]) {
+			t.Fatalf("point %d: (%v, %v) in parts, (%v, %v) whole", i, x2[i], y2[i], x1[i], y1[i])
+		}
+	}
+}
+
 // TestCRSInfo checks CRS descriptions. Unit factors from the EPSG dataset:
 // metre = 1, US survey foot (EPSG:9003) = 0.304800609601219 m.
 func TestCRSInfo(t *testing.T) {
