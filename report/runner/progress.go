@@ -97,7 +97,7 @@ func (p *Progress) line(elapsed time.Duration) string {
 	rate := float64(p.done) / elapsed.Seconds()
 	s += fmt.Sprintf(", %.2f %s/s", rate, p.what)
 	if left := p.total - p.done; left > 0 {
-		s += fmt.Sprintf(", about %s left", (time.Duration(float64(left)/rate*float64(time.Second))).Round(time.Second))
+		s += fmt.Sprintf(", about %s left", (time.Duration(float64(left) / rate * float64(time.Second))).Round(time.Second))
 	}
 	return s
 }
