@@ -141,21 +141,52 @@ func SyntheticFan(seed uint64) Grid {
 type DemoAlignment struct {
 	Name     string
 	Vertices [][2]float64
+	// Main is true for the main canal, which runs across the fan near its
+	// head; the others are branches down the fan.
+	Main bool
+	// Corridor names the canal a route is one candidate of ("" for a
+	// canal with one route); Flow (m³/s) and BottomWidth (m) are the
+	// route's own design values, 0 for the scheme's design.
+	Corridor          string
+	Flow, BottomWidth float64
 }
 
 // demoRoutes lays the three branch canals out from the head reach near the
 // fan's apex obliquely down the fan, each crossing one gully and both
-// terrace risers (or the upper one): polar waypoints (angle from due
-// south, radius from the apex) joined by smooth arcs.
+// terrace risers (or the upper one), then the main canal across the fan's
+// head that feeds them, and a second candidate route for the middle branch:
+// polar waypoints (angle from due south, radius from the apex) joined by
+// smooth arcs. The branches carry less water than the main canal.
 var demoRoutes = []struct {
 	name     string
 	from, to [2]float64 // angle (rad), radius (m)
 	bend     float64    // sideways bow of the route, rad
 	vertices int
+	main     bool
+	corridor string
+	flow, b  float64 // m³/s, m; 0: the scheme's design
 }{
-	{"West Branch", [2]float64{-0.12, 1900}, [2]float64{-0.40, 6600}, 0.03, 11},
-	{"Middle Branch", [2]float64{0.24, 2000}, [2]float64{-0.14, 7400}, -0.03, 13},
-	{"East Branch", [2]float64{0.10, 2300}, [2]float64{0.50, 5600}, 0.02, 10},
+	{"West Branch", [2]float64{-0.12, 1900}, [2]float64{-0.40, 6600}, 0.03, 11, false, "", 1.2, 1.5},
+	{"Middle Branch", [2]float64{0.24, 2000}, [2]float64{-0.14, 7400}, -0.03, 13, false, "Middle lateral", 1.2, 1.5},
+	{"East Branch", [2]float64{0.10, 2300}, [2]float64{0.50, 5600}, 0.02, 10, false, "", 1.0, 1.5},
+	{"Main Canal", [2]float64{-0.45, 1800}, [2]float64{0.45, 2150}, 0.0, 9, true, "", 0, 0},
+	{"Middle Branch east route", [2]float64{0.26, 2050}, [2]float64{0.02, 7200}, 0.05, 13, false, "Middle lateral", 1.2, 1.5},
+}
+
+// Properties are the route's GeoJSON properties: its name and, where set,
+// its corridor, flow (m³/s) and bottom width (m).
+func (a DemoAlignment) Properties() map[string]any {
+	p := map[string]any{"name": a.Name}
+	if a.Corridor != "" {
+		p["corridor"] = a.Corridor
+	}
+	if a.Flow > 0 {
+		p["flow"] = a.Flow
+	}
+	if a.BottomWidth > 0 {
+		p["bottom_width"] = a.BottomWidth
+	}
+	return p
 }
 
 // DemoAlignments returns the demo's canal routes in [DemoEPSG] metres,
@@ -164,7 +195,7 @@ var demoRoutes = []struct {
 func DemoAlignments() []DemoAlignment {
 	out := make([]DemoAlignment, 0, len(demoRoutes))
 	for _, r := range demoRoutes {
-		a := DemoAlignment{Name: r.name}
+		a := DemoAlignment{Name: r.name, Main: r.main, Corridor: r.corridor, Flow: r.flow, BottomWidth: r.b}
 		for i := range r.vertices {
 			t := float64(i) / float64(r.vertices-1)
 			theta := r.from[0] + t*(r.to[0]-r.from[0]) + r.bend*math.Sin(math.Pi*t)
@@ -191,9 +222,9 @@ func DemoAlignmentsGeoJSON() []byte {
 		Coordinates [][2]float64 `json:"coordinates"`
 	}
 	type feature struct {
-		Type       string            `json:"type"`
-		Properties map[string]string `json:"properties"`
-		Geometry   geometry          `json:"geometry"`
+		Type       string         `json:"type"`
+		Properties map[string]any `json:"properties"`
+		Geometry   geometry       `json:"geometry"`
 	}
 	type crsMember struct {
 		Type       string            `json:"type"`
@@ -214,7 +245,7 @@ func DemoAlignmentsGeoJSON() []byte {
 	for _, a := range DemoAlignments() {
 		fc.Features = append(fc.Features, feature{
 			Type:       "Feature",
-			Properties: map[string]string{"name": a.Name},
+			Properties: a.Properties(),
 			Geometry:   geometry{Type: "LineString", Coordinates: a.Vertices},
 		})
 	}

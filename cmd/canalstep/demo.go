@@ -33,16 +33,17 @@ func runDemo(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	dem := filepath.Join(in, "dem.tif")
 	aln := filepath.Join(in, "canals.geojson")
 	design := filepath.Join(in, "design.toml")
+	job := filepath.Join(in, "job.toml")
 	fmt.Fprintf(stdout, "== %s (fictional), terrain seed %d\n", terrain.DemoSchemeName, *seed)
-	if err := writeDemoInputs(dem, aln, design, *seed); err != nil {
+	if err := writeDemoInputs(dem, aln, design, job, *seed); err != nil {
 		return fmt.Errorf("demo inputs: %w", err)
 	}
-	fmt.Fprintf(stdout, "DEM: %s\nalignments: %s\ndesign: %s\n", dem, aln, design)
+	fmt.Fprintf(stdout, "DEM: %s\nalignments: %s\ndesign: %s\nbatch job: %s\n", dem, aln, design, job)
 
 	steps := [][]string{
 		{"profile", "--dem", dem, "--alignment", aln, "--spacing", "10", "--out", filepath.Join(*out, "profile")},
 		{"plan", "--dem", dem, "--alignment", aln, "--design", design, "--out", filepath.Join(*out, "plan")},
-		{"compare", "--dem", dem, "--alignment", aln, "--design", design, "--alternatives", "1.0;1.5;2.0;1.0,1.5,2.0", "--out", filepath.Join(*out, "compare")},
+		{"batch", "--out", filepath.Join(*out, "batch"), "--quiet", job},
 	}
 	for _, s := range steps {
 		if err := ctx.Err(); err != nil {
@@ -53,7 +54,9 @@ func runDemo(ctx context.Context, args []string, stdout, stderr io.Writer) error
 			return fmt.Errorf("demo step %q: %w", s[0], err)
 		}
 	}
-	fmt.Fprintf(stdout, "\nDemo outputs are in %s/{profile,plan,compare}/<alignment>/.\n", *out)
+	fmt.Fprintf(stdout, "\nDemo outputs are in %s/{profile,plan,batch}/<alignment>/.\n", *out)
+	fmt.Fprintf(stdout, "The reviewer's report of one canal: %s\n", filepath.Join(*out, "plan", "Main_Canal", report.ReportFile))
+	fmt.Fprintf(stdout, "The batch index (every canal, route and drop-height alternative): %s\n", filepath.Join(*out, "batch", "index.html"))
 	return nil
 }
 
@@ -82,11 +85,30 @@ cost_cut = 4.0        # per m3
 cost_fill = 6.0       # per m3 compacted
 cost_drop = 15000     # per drop structure
 cost_drop_height = 10000  # per m of drop height
+
+# The main canal runs across the fan's head and its gullies; to command the
+# land beyond them its banks may stand higher there.
+[alignment."Main Canal"]
+max_fill = 3.0        # m
 `
 
-// writeDemoInputs writes the synthetic DEM, the demo alignments (as RFC
-// 7946 GeoJSON in WGS 84 lon/lat) and the demo design file.
-func writeDemoInputs(demPath, alnPath, designPath string, seed uint64) error {
+// demoJob is the batch job file of the demo scheme: every canal and route
+// of canals.geojson planned with three drop-height alternatives on the
+// design of design.toml.
+const demoJob = `# canalstep batch job for the fictional demo scheme: every canal and route,
+# three drop-height alternatives. Paths are relative to this file's folder.
+#   canalstep batch --out OUT job.toml
+dem = "dem.tif"
+alignments = ["canals.geojson"]
+design = "design.toml"
+alternatives = "1.0;1.5;1.0,1.5"
+`
+
+// writeDemoInputs writes the synthetic DEM, the demo alignments and
+// offtakes (as RFC 7946 GeoJSON in WGS 84 lon/lat, the branches with their
+// own flow and bed width, the middle branch's two candidate routes sharing
+// a corridor), the demo design file and its batch job file.
+func writeDemoInputs(demPath, alnPath, designPath, jobPath string, seed uint64) error {
 	if err := os.MkdirAll(filepath.Dir(demPath), 0o755); err != nil {
 		return err
 	}
@@ -106,7 +128,7 @@ func writeDemoInputs(demPath, alnPath, designPath string, seed uint64) error {
 		if err := tr.Transform(xs, ys); err != nil {
 			return fmt.Errorf("alignment %q to lon/lat: %w", a.Name, err)
 		}
-		fc.add(a.Name, xs, ys)
+		fc.addWith(a.Name, a.Corridor, a.Flow, a.BottomWidth, xs, ys)
 	}
 	for _, o := range terrain.DemoOfftakes() {
 		xs, ys := []float64{o.E}, []float64{o.N}
@@ -118,8 +140,14 @@ func writeDemoInputs(demPath, alnPath, designPath string, seed uint64) error {
 	if err := report.WriteFileAtomic(alnPath, fc.write); err != nil {
 		return err
 	}
-	return report.WriteFileAtomic(designPath, func(w io.Writer) error {
+	if err := report.WriteFileAtomic(designPath, func(w io.Writer) error {
 		_, err := io.WriteString(w, demoDesign)
+		return err
+	}); err != nil {
+		return err
+	}
+	return report.WriteFileAtomic(jobPath, func(w io.Writer) error {
+		_, err := io.WriteString(w, demoJob)
 		return err
 	})
 }
@@ -128,9 +156,25 @@ func writeDemoInputs(demPath, alnPath, designPath string, seed uint64) error {
 // (RFC 7946), coordinates to 1e-9 degree (about 0.1 mm).
 type geoJSONLines struct{ features []string }
 
-func (g *geoJSONLines) add(name string, lon, lat []float64) {
+func (g *geoJSONLines) add(name string, lon, lat []float64) { g.addWith(name, "", 0, 0, lon, lat) }
+
+// addWith adds a line with a corridor and its own flow (m³/s) and bottom
+// width (m) as properties, each left out when empty or zero.
+func (g *geoJSONLines) addWith(name, corridor string, flow, bottomWidth float64, lon, lat []float64) {
 	b := []byte(`{"type":"Feature","properties":{"name":`)
 	b = strconv.AppendQuote(b, name)
+	if corridor != "" {
+		b = append(b, `,"corridor":`...)
+		b = strconv.AppendQuote(b, corridor)
+	}
+	if flow > 0 {
+		b = append(b, `,"flow":`...)
+		b = strconv.AppendFloat(b, flow, 'f', -1, 64)
+	}
+	if bottomWidth > 0 {
+		b = append(b, `,"bottom_width":`...)
+		b = strconv.AppendFloat(b, bottomWidth, 'f', -1, 64)
+	}
 	b = append(b, `},"geometry":{"type":"LineString","coordinates":[`...)
 	for i := range lon {
 		if i > 0 {
