@@ -19,7 +19,7 @@ import (
 // above the ground at every station.
 func TestCommandMargin(t *testing.T) {
 	t.Parallel()
-	stdout, folder := runEast(t, "plan", east4, "--command-margin", "0.1")
+	stdout, folder := runEast(t, "plan", 3, "--command-margin", "0.1")
 	rows := readCSV(t, filepath.Join(folder, "stations.csv"))
 	ws, g, m := column(t, rows[0], "water_surface_m"), column(t, rows[0], "ground_m"), column(t, rows[0], "margin_m")
 	low := 0
@@ -53,8 +53,8 @@ func TestPerAlignmentControls(t *testing.T) {
 	t.Parallel()
 	dir := t.TempDir()
 	aln := writeGeoJSON(t, dir, "two.geojson",
-		demoLine(east, east4, "", map[string]any{"flow": 2.0, "roughness": 0.03, "colour": "blue"}),
-		demoLine(west, 3, "", map[string]any{"colour": "red", "remarks": "survey 2019", "start_invert": nil}))
+		demoLine(east, 3, "", map[string]any{"flow": 2.0, "roughness": 0.03, "colour": "blue"}),
+		demoLine(west, 2, "", map[string]any{"colour": "red", "remarks": "survey 2019", "start_invert": nil}))
 	design := writeFile(t, dir, "design.toml", `
 [alignment."East Branch"]
 roughness = 0.028
@@ -147,7 +147,7 @@ func sameSet(a, b []float64) bool {
 func TestGroundModel(t *testing.T) {
 	t.Parallel()
 	dir := t.TempDir()
-	aln := writeGeoJSON(t, dir, "east.geojson", demoLine(east, 3, "", nil))
+	aln := writeGeoJSON(t, dir, "east.geojson", demoLine(east, 2, "", nil))
 	for _, c := range []struct{ flag, model, words string }{
 		{"cross-sections", "cross_sections", "earthwork on DEM cross-sections"},
 		{"level", "level", "earthwork on level ground across the line"},
@@ -182,7 +182,7 @@ func TestGroundModel(t *testing.T) {
 func TestSavingAgainstFeasibleBaseline(t *testing.T) {
 	t.Parallel()
 	dir := t.TempDir()
-	aln := writeGeoJSON(t, dir, "east.geojson", demoLine(east, east4, "", nil))
+	aln := writeGeoJSON(t, dir, "east.geojson", demoLine(east, 3, "", nil))
 	for _, c := range []struct {
 		name  string
 		extra []string

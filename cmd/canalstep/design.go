@@ -283,7 +283,7 @@ func parseBytes(name, s string) (int64, error) {
 		}
 	}
 	v, err := strconv.ParseFloat(t, 64)
-	if err != nil || !(v*mult >= 1<<20) || v*mult > 1<<40 {
+	if err != nil || !(v*mult >= 1e6) || v*mult > 1e12 {
 		return 0, usagef("--%s %q: give a size from 1MB to 1TB, e.g. 2GB", name, textsafe.Clip(s, 80))
 	}
 	return int64(v * mult), nil

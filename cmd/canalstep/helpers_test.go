@@ -220,10 +220,11 @@ func mustRun(t testing.TB, args ...string) string {
 	return out
 }
 
-// planFiles are the files of a plan's alignment folder (report.WriteFolder).
+// planFiles are the files every plan folder holds whatever else
+// report.WriteFolder adds (the report, the survey and GIS deliverables):
+// the tests that need a whole folder compare file sets (sameFiles).
 var planFiles = []string{"ground.csv", "ground.png", "summary.json", "stations.csv", "drops.csv",
-	"profile.png", "profile.svg", "profile.pdf", "report.html", "stakes.csv", "plan.geojson", "plan.gpkg", "plan.xml",
-	outdir.MarkerFile}
+	"profile.png", "profile.svg", "report.html", outdir.MarkerFile}
 
 // checkFolder fails unless dir holds every file of files, none empty.
 func checkFolder(t testing.TB, dir string, files []string) {
@@ -231,6 +232,36 @@ func checkFolder(t testing.TB, dir string, files []string) {
 	for _, f := range files {
 		if fi, err := os.Stat(filepath.Join(dir, f)); err != nil || fi.Size() == 0 {
 			t.Errorf("%s missing or empty (%v)", filepath.Join(dir, f), err)
+		}
+	}
+}
+
+// fileNames returns the names of the files in dir, sorted.
+func fileNames(t testing.TB, dir string) []string {
+	t.Helper()
+	entries, err := os.ReadDir(dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var names []string
+	for _, e := range entries {
+		names = append(names, e.Name())
+	}
+	return names
+}
+
+// sameFiles fails unless every folder of dirs holds the same file names as
+// the first: a folder committed by an interrupted or concurrent run is as
+// whole as one of a run that ended.
+func sameFiles(t testing.TB, dirs ...string) {
+	t.Helper()
+	if len(dirs) == 0 {
+		return
+	}
+	want := strings.Join(fileNames(t, dirs[0]), " ")
+	for _, d := range dirs[1:] {
+		if got := strings.Join(fileNames(t, d), " "); got != want {
+			t.Errorf("%s holds %s; %s holds %s", d, got, dirs[0], want)
 		}
 	}
 }

@@ -322,16 +322,10 @@ func (s *planSetup) run(ctx context.Context, stdout, stderr io.Writer, sets [][]
 		dem0.Close()
 		return err
 	}
-	dir, err := outdir.Open(ctx, s.out, outdir.Options{Wait: s.wait, Waiting: func(h outdir.Holder) {
-		fmt.Fprintf(stderr, "canalstep: waiting for the run of %s to finish writing %s\n", h, textsafe.Terminal(s.out))
-	}})
+	dir, err := openOut(ctx, s.out, s.wait, stderr)
 	if err != nil {
 		dem0.Close()
-		var busy *outdir.BusyError
-		if errors.As(err, &busy) {
-			return usageError{err}
-		}
-		return err
+		return asInput(err) // the --out path given cannot be written
 	}
 	defer dir.Close()
 	err = runner.Each(ctx, len(jobs), s.jobs, dem0, s.ground.openDEM, func(i int, g *terrain.DEM) {

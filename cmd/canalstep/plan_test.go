@@ -126,7 +126,7 @@ func checkSaving(t testing.TB, sum map[string]any, stdout string) {
 func TestPlanReproducible(t *testing.T) {
 	t.Parallel()
 	dir := t.TempDir()
-	aln := writeGeoJSON(t, dir, "two.geojson", demoLine(east, 3, "", nil), demoLine(west, 3, "", nil))
+	aln := writeGeoJSON(t, dir, "two.geojson", demoLine(east, 2, "", nil), demoLine(west, 2, "", nil))
 	var trees [2]map[string][]byte
 	for k, jobs := range []string{"1", "4"} {
 		out := filepath.Join(dir, "out"+jobs)

@@ -2,7 +2,6 @@ package main
 
 import (
 	"context"
-	"errors"
 	"fmt"
 	"io"
 	"path/filepath"
@@ -49,14 +48,10 @@ func runProfile(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	}
 	info := dem0.Info()
 	dem := describeDEM(info)
-	dir, err := outdir.Open(ctx, *out, outdir.Options{Wait: *wait})
+	dir, err := openOut(ctx, *out, *wait, stderr)
 	if err != nil {
 		dem0.Close()
-		var busy *outdir.BusyError
-		if errors.As(err, &busy) {
-			return usageError{err}
-		}
-		return err
+		return asInput(err) // the --out path given cannot be written
 	}
 	defer dir.Close()
 	n := len(sc.Alignments)

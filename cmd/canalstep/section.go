@@ -65,15 +65,15 @@ func positive(key string) planner.Range {
 // wide physical bounds that catch typing mistakes and hostile input, not
 // design guidance (common practice, no source).
 var (
-	kennedyRange    = planner.Range{Min: 0, Max: 5, MinExclusive: true}    // Kennedy's m; real soils 0.7 to 1.3 (from memory)
-	froudeRange     = planner.Range{Min: 0, Max: 10, MinExclusive: true}   // a warning threshold
-	coeffRange      = planner.Range{Min: 0, Max: 10, MinExclusive: true}   // USBR freeboard C, m (1.5 to 2.5 ft in the rule)
-	freeboardRange  = planner.Range{Min: 0, Max: 20, MinExclusive: true}   // m: a fixed freeboard, when given
-	lengthRange     = planner.Range{Min: 0, Max: 1e6, MinExclusive: true}  // m: a profile's length
-	stepRange       = planner.Range{Min: 0, Max: 1e5, MinExclusive: true}  // m: a profile's station interval
-	holdRange       = planner.Range{Min: 0, Max: 3, MinExclusive: true}    // tailwater / sequent depth the floor is set for
-	structureRange  = planner.Range{Min: 0, Max: 20}                       // m: a crest raise or basin depression, as a drop height
-	notchCoeffRange = planner.Range{Min: 0, Max: 2, MinExclusive: true}    // discharge coefficient of a notch
+	kennedyRange    = planner.Range{Min: 0, Max: 5, MinExclusive: true}   // Kennedy's m; real soils 0.7 to 1.3 (from memory)
+	froudeRange     = planner.Range{Min: 0, Max: 10, MinExclusive: true}  // a warning threshold
+	coeffRange      = planner.Range{Min: 0, Max: 10, MinExclusive: true}  // USBR freeboard C, m (1.5 to 2.5 ft in the rule)
+	freeboardRange  = planner.Range{Min: 0, Max: 20, MinExclusive: true}  // m: a fixed freeboard, when given
+	lengthRange     = planner.Range{Min: 0, Max: 1e6, MinExclusive: true} // m: a profile's length
+	stepRange       = planner.Range{Min: 0, Max: 1e5, MinExclusive: true} // m: a profile's station interval
+	holdRange       = planner.Range{Min: 0, Max: 3, MinExclusive: true}   // tailwater / sequent depth the floor is set for
+	structureRange  = planner.Range{Min: 0, Max: 20}                      // m: a crest raise or basin depression, as a drop height
+	notchCoeffRange = planner.Range{Min: 0, Max: 2, MinExclusive: true}   // discharge coefficient of a notch
 )
 
 // outputFlags are the --units and --json flags of a command that prints
