@@ -15,7 +15,7 @@ var debianPackage = map[string]string{
 	"gdallocationinfo": "gdal-bin", "gdalinfo": "gdal-bin", "gdalsrsinfo": "gdal-bin", "gdal_translate": "gdal-bin",
 	"cs2cs": "proj-bin", "geod": "proj-bin", "glpsol": "glpk-utils", "cbc": "coinor-cbc",
 	"xmllint": "libxml2-utils", "ogrinfo": "gdal-bin", "ogr2ogr": "gdal-bin",
-	"chromium": "chromium",
+	"chromium": "chromium", "pdfinfo": "poppler-utils", "pdftotext": "poppler-utils", "pdftoppm": "poppler-utils",
 }
 
 // Need returns the path of the tool called name.
