@@ -94,7 +94,8 @@ const (
 // WriteFolder writes one alignment's output folder into st: its ground
 // (ground.csv, ground.png); summary.json and report.html always (with the
 // conflicts of an infeasible plan); for an optimal plan stations.csv,
-// drops.csv, profile.png/svg/pdf, the curve table (curves.csv, when
+// drops.csv, profile.png/svg, the printable sheets (longsection.pdf,
+// crosssections.pdf), the curve table (curves.csv, when
 // curves were fitted) and the survey deliverables (stakes.csv,
 // plan.geojson, plan.gpkg, plan.xml); for a comparison alternatives.csv and
 // alternatives.png too.
@@ -124,6 +125,9 @@ func WriteFolder(st Stager, f Folder) error {
 	}
 	if err := writePlanFiles(st, p, r, u); err != nil {
 		return err
+	}
+	if err := WriteSheets(st, p.Name, r, u, Imprint{InputsDate: f.Provenance.InputsDate, Version: f.Provenance.Version}); err != nil {
+		return fmt.Errorf("printable sheets: %w", err)
 	}
 	if rt := f.Corridor.Route; rt != nil && len(rt.Curves) > 0 {
 		if err := st.WriteFile("curves.csv", func(w io.Writer) error { return WriteCurvesCSV(w, rt, p.Stations[0].Chainage, u) }); err != nil {
@@ -193,7 +197,7 @@ func writePlanFiles(st Stager, p *alignment.Profile, r *planner.Result, u Units)
 		}
 	}
 	ls := NewLongSection(p.Name, r, u)
-	for _, name := range []string{"profile.png", "profile.svg", "profile.pdf"} {
+	for _, name := range []string{"profile.png", "profile.svg"} {
 		path, err := st.Path(name)
 		if err == nil {
 			err = WriteLongSection(path, ls)
