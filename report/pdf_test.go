@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 )
 
@@ -30,5 +31,23 @@ func TestPDFReproducible(t *testing.T) {
 	}
 	if !bytes.Equal(got[0], got[1]) {
 		t.Errorf("two renderings of the same long section differ")
+	}
+}
+
+// TestPDFTextEncoding: a plot written as PDF reads back (pdftotext,
+// poppler) with its accented and typographic characters as written; they
+// came out as mojibake when UTF-8 went to vgpdf's Windows-1252 fonts.
+func TestPDFTextEncoding(t *testing.T) {
+	x, z := testGround(50, 500, false)
+	path := filepath.Join(t.TempDir(), "g.pdf")
+	if err := WriteGroundProfile(path, GroundProfile{Name: "Süd – Nord", Chainage: x, Ground: z, Units: SI}); err != nil {
+		t.Fatal(err)
+	}
+	b, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := pdfTool(t, "pdftotext", b); !strings.Contains(got, "Ground profile: Süd – Nord (vertical exaggeration") {
+		t.Errorf("title as read back:\n%s", got)
 	}
 }

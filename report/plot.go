@@ -107,7 +107,7 @@ func newCanvas(w, h vg.Length, format string) (vg.CanvasWriterTo, error) {
 	case "svg":
 		return vgsvg.NewWith(vgsvg.UseWH(w, h), vgsvg.EmbedFonts(true)), nil
 	case "pdf":
-		return vgpdf.New(w, h), nil
+		return cp1252Canvas{vgpdf.New(w, h)}, nil // text in the fonts' code page
 	}
 	return nil, fmt.Errorf("unknown plot format %q (use png, svg or pdf)", format)
 }
