@@ -157,6 +157,40 @@ func BenchmarkBenchRoute(b *testing.B) {
 	b.ReportMetric(float64(len(xs)), "points")
 }
 
+// BenchmarkBenchRouteDecode is the tile-decode floor of the profile
+// benchmark: the same DEM and route as BenchmarkBenchRoute, sampled with a
+// single decoder and Open and Close left out of the timing, so an op is the
+// 21 blocks decoded one after another plus the bilinear sampling of 40,049
+// points (BenchmarkSampleLine: about 2 ms of it). ms/block is the op over
+// the blocks decoded; scripts/bench.sh compares the profile, net of the
+// load floor, with it.
+func BenchmarkBenchRouteDecode(b *testing.B) {
+	dir := os.Getenv("CANALSTEP_BENCH_DIR")
+	if dir == "" {
+		b.Skip("set CANALSTEP_BENCH_DIR to the folder scripts/bench.sh wrote")
+	}
+	xs, ys := readPoints(b, filepath.Join(dir, "points.txt"))
+	out := make([]float64, len(xs))
+	blocks := 0
+	for b.Loop() {
+		b.StopTimer()
+		d, err := terrain.Open(filepath.Join(dir, "dem.tif"), terrain.Options{Readers: 1})
+		if err != nil {
+			b.Fatal(err)
+		}
+		b.StartTimer()
+		if err := d.Sample(xs, ys, out); err != nil {
+			b.Fatal(err)
+		}
+		b.StopTimer()
+		blocks = d.BlocksRead()
+		d.Close()
+		b.StartTimer()
+	}
+	b.ReportMetric(float64(blocks), "blocks/op")
+	b.ReportMetric(float64(b.Elapsed())/1e6/float64(b.N)/float64(max(blocks, 1)), "ms/block")
+}
+
 // readPoints reads "x y" lines.
 func readPoints(tb testing.TB, path string) (xs, ys []float64) {
 	tb.Helper()
