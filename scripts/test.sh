@@ -4,7 +4,7 @@
 set -euo pipefail
 cd "$(dirname "$0")/.."
 . scripts/setup.sh
-canalstep_setup chromium
+canalstep_setup chromium poppler-utils
 echo "== go vet ./..."
 go vet ./...
 echo "== go test -race ./..."
