@@ -9,6 +9,8 @@ require (
 	github.com/paulmach/orb v0.14.0
 	github.com/schollz/progressbar/v3 v3.19.1
 	github.com/spf13/pflag v1.1.0
+	golang.org/x/term v0.44.0
+	golang.org/x/text v0.28.0
 	gonum.org/v1/plot v0.17.0
 )
 
@@ -22,7 +24,5 @@ require (
 	github.com/rivo/uniseg v0.4.7 // indirect
 	golang.org/x/image v0.30.0 // indirect
 	golang.org/x/sys v0.46.0 // indirect
-	golang.org/x/term v0.44.0 // indirect
-	golang.org/x/text v0.28.0 // indirect
 	gonum.org/v1/gonum v0.17.0 // indirect
 )
