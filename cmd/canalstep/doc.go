@@ -17,7 +17,7 @@ The commands are:
 	profile   ground long section along each alignment (ground.csv, ground.png)
 	section   canal section: normal and critical depth, velocity-limited grades, freeboard
 	drop      one straight drop: nappe, pool, jump, basin, end sill, outlet check over flows
-	plan      least-cost drop placement on the real ground, beside the even-spacing method
+	plan      least-cost drop placement on the real ground, beside two hand methods, with every deliverable
 	compare   plan several drop-height sets and compare earthwork and cost
 	demo      build the fictional demo scheme on generated terrain and run canalstep on it
 

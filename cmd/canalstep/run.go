@@ -30,7 +30,7 @@ func commands() []command {
 		{"profile", "ground long section along each alignment (ground.csv, ground.png)", runProfile},
 		{"section", "uniform flow, velocity-limited slopes and freeboard of one canal section", runSection},
 		{"drop", "straight drop with stilling basin: Rand geometry, jump, basin, outlet check", runDrop},
-		{"plan", "least-cost drop placement on the real ground, beside the even-spacing method", runPlan},
+		{"plan", "least-cost drop placement on the real ground, beside two hand methods, with every deliverable", runPlan},
 		{"compare", "plan several drop-height sets and compare earthwork and cost", runCompare},
 		{"batch", "many alignments x drop-height alternatives: isolated jobs, index, resume, shards", runBatch},
 		{"merge", "combine the shard folders of one batch into one folder and index", runMerge},
