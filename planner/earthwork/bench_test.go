@@ -140,3 +140,29 @@ func BenchmarkCrossBuild40(b *testing.B) {
 		}
 	}
 }
+
+// benchAreasRun calls AreasRun for runs of 600 beds 1 cm apart from 4 m
+// below to 2 m above the ground at each station in turn; one op is one bed
+// (compare BenchmarkLevelAreas and BenchmarkCrossAreas40, one call a bed).
+func benchAreasRun(b *testing.B, s Sections, ground []float64) {
+	r := s.(Runs)
+	const m = 600
+	cut, fill := make([]float64, m), make([]float64, m)
+	var sink float64
+	i := 0
+	b.ReportAllocs()
+	for b.Loop() {
+		if i%m == 0 {
+			st := (i / m) % len(ground)
+			r.AreasRun(st, ground[st]-4, 0.01, 0, cut, fill)
+		}
+		sink += cut[i%m] + fill[i%m]
+		i++
+	}
+	_ = sink
+}
+
+func BenchmarkLevelAreasRun(b *testing.B) {
+	_, _, g := benchSections(1000, 10)
+	benchAreasRun(b, Level(sheetTemplate, g), g)
+}

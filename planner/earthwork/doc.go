@@ -23,6 +23,12 @@
 // (template against ground, exact integration of piecewise-linear sections,
 // volumes between sections), whose route-surveying sources are cited there.
 //
-// Areas, MidAreas and Catch allocate nothing and take no locks: a Sections
-// value may be shared by goroutines once built.
+// Both also implement [Runs]: the areas of a whole run of beds on an
+// elevation grid at one station in one call, the same numbers as Areas and
+// MidAreas bit for bit, for the optimiser.
+//
+// The methods take no locks and a Sections value may be shared by
+// goroutines once built. They allocate nothing, except that a Cross value
+// used by several goroutines at once gives each concurrent call beyond
+// the first its own scratch space.
 package earthwork

@@ -135,3 +135,11 @@ func mustCross(tb testing.TB, tp Template, offsets, levels [][]float64, tmax int
 	}
 	return s
 }
+
+// tabulated reports whether Cross tabulates the inner areas of side k of
+// station i (or walks them segment by segment).
+func tabulated(x *crossSections, i, k int) bool {
+	bd := x.take()
+	defer x.give(bd)
+	return bd.station(i, forRun).side[k].knots != nil
+}

@@ -109,7 +109,7 @@ func TestCrossTableMatchesWalk(t *testing.T) {
 		offs, levs := [][]float64{o1, o2}, [][]float64{l1, l2}
 		tab := mustCross(t, tp, offs, levs, 1<<30)
 		walk := mustCross(t, tp, offs, levs, 0)
-		if tab.sec[0].side[1].knots == nil || walk.sec[0].side[1].knots != nil {
+		if !tabulated(tab, 0, 1) || tabulated(walk, 0, 1) {
 			t.Fatal("the tabulation limit did not choose the method")
 		}
 		for bed := 92.0; bed < 108; bed += 0.171 {

@@ -90,23 +90,43 @@ func (t Template) HalfWidthAtBank() float64 {
 // Cut and fill are reported separately, never netted within the section.
 // A NaN depth gives a NaN fill.
 func (t Template) Areas(depth float64) (cut, fill float64) {
-	x1 := t.BedWidth / 2
 	h := t.BankHeight
-	d := depth
-	switch {
+	switch d := depth; {
 	case d > h:
-		r := d - h
-		cut = x1*d + t.SideSlope*(h*d-h*h/2) + t.BankTopWidth*r + t.CutSlope*r*r/2
+		return t.deepCut(d), 0
 	case d > 0:
-		cut = x1*d + t.SideSlope*d*d/2
-		ht := h - d
-		fill = ht * (t.BankTopWidth + (t.SideSlope+t.OuterSlope)*ht/2)
+		return t.shallowCut(d), t.shallowFill(d)
 	default:
-		e := -d
-		he := h + e
-		fill = x1*e + t.SideSlope*(h*h/2+e*h) + t.BankTopWidth*he + t.OuterSlope*he*he/2
+		return 0, t.highFill(d)
 	}
-	return 2 * cut, 2 * fill
+}
+
+// The three regimes of Areas, each small enough to inline (Level's runs
+// call them in loops). Each returns the whole section (both halves).
+
+// deepCut is the cut for d > H.
+func (t *Template) deepCut(d float64) float64 {
+	h := t.BankHeight
+	r := d - h
+	return 2 * (t.BedWidth/2*d + t.SideSlope*(h*d-h*h/2) + t.BankTopWidth*r + t.CutSlope*r*r/2)
+}
+
+// shallowCut and shallowFill are the cut and fill for 0 < d ≤ H.
+func (t *Template) shallowCut(d float64) float64 {
+	return 2 * (t.BedWidth/2*d + t.SideSlope*d*d/2)
+}
+
+func (t *Template) shallowFill(d float64) float64 {
+	ht := t.BankHeight - d
+	return 2 * (ht * (t.BankTopWidth + (t.SideSlope+t.OuterSlope)*ht/2))
+}
+
+// highFill is the fill for d ≤ 0 (and NaN).
+func (t *Template) highFill(d float64) float64 {
+	h := t.BankHeight
+	e := -d
+	he := h + e
+	return 2 * (t.BedWidth/2*e + t.SideSlope*(h*h/2+e*h) + t.BankTopWidth*he + t.OuterSlope*he*he/2)
 }
 
 // levelCatch returns the distance (m) of the catch point from the centre
