@@ -61,14 +61,56 @@ type dropPick struct {
 }
 
 // slot holds drop candidates made at station j for the heights whose
-// spacing frees the next drop at station a: for each target grade and
-// bed-line index, the best cost so far minus the target's running earthwork
-// at j. They merge into the free states at a, where the next drop may sit.
+// spacing frees the next drop at station a: for each target grade, the
+// candidates that may still win, in rising bed-line order. They merge into
+// the free states at a, where the next drop may sit.
 type slot struct {
 	j, a int
-	lo   []int       // per grade: first bed-line index held
-	vals [][]float64 // per grade
-	hg   [][]uint8   // per grade: height index × grades + grade of the reach upstream of the drop
+	ent  [][]entry // per target grade
+}
+
+// entry is one drop candidate: the best cost so far at the drop station
+// plus the drop, minus the target line's running earthwork there.
+type entry struct {
+	v    float64
+	k    int32 // target bed line
+	code uint8 // height index × grades + grade of the reach upstream of the drop
+}
+
+// lines holds one grade's state arrays over its bed-line index range: line
+// k is at index k − km.
+type lines struct {
+	km    int
+	f     []float64 // free states: cost so far minus the running earthwork of the line
+	p     []float64 // running earthwork of the line since it became feasible
+	since []int32   // station where the line last entered the window
+	// Cut and fill areas (m²) at the current and the previous station;
+	// the two swap roles at every station.
+	cut, fill, cutPrev, fillPrev []float64
+	run                          earthwork.Runs
+}
+
+// pointRuns serves earthwork.Runs from a Sections that lacks it.
+type pointRuns struct{ s earthwork.Sections }
+
+func (r pointRuns) AreasRun(i int, base, step float64, k0 int, cut, fill []float64) {
+	for x := range cut {
+		cut[x], fill[x] = r.s.Areas(i, base+float64(k0+x)*step)
+	}
+}
+
+func (r pointRuns) MidAreasRun(i int, base, step, rise float64, k0 int, cut, fill []float64) {
+	for x := range cut {
+		bed := base + float64(k0+x)*step
+		cut[x], fill[x] = r.s.MidAreas(i, bed+rise, bed)
+	}
+}
+
+func runsOf(s earthwork.Sections) earthwork.Runs {
+	if r, ok := s.(earthwork.Runs); ok {
+		return r
+	}
+	return pointRuns{s}
 }
 
 func ceilIdx(x float64) int  { return int(math.Ceil(x - 1e-7)) }
@@ -120,14 +162,12 @@ func (p *core) phaseOffsets(i int, rep, off []int) {
 	}
 }
 
-// solve runs the dynamic programme. It returns the least-cost plan or an
-// *InfeasibleError.
-func (p *core) solve() (*solution, error) {
-	n, G, H := len(p.c), len(p.grades), len(p.heights)
-	wlo := make([][]int, G)
-	whi := make([][]int, G)
-	kmin := make([]int, G)
-	kmax := make([]int, G)
+// windows returns the bed-line windows of every grade at every station
+// (the start is fixed at k = 0) and each grade's index range over them.
+func (p *core) windows() (wlo, whi [][]int, kmin, kmax []int) {
+	n, G := len(p.c), len(p.grades)
+	wlo, whi = make([][]int, G), make([][]int, G)
+	kmin, kmax = make([]int, G), make([]int, G)
 	for g := 0; g < G; g++ {
 		wlo[g] = make([]int, n)
 		whi[g] = make([]int, n)
@@ -151,36 +191,115 @@ func (p *core) solve() (*solution, error) {
 			kmin[g], kmax[g] = 0, -1
 		}
 	}
-	// Bound the work before allocating: the state arrays span each grade's
-	// bed-line range, and one decision byte is kept per state.
-	var states0, span int64
+	return wlo, whi, kmin, kmax
+}
+
+// footprint estimates the bytes solve allocates, before it allocates them:
+// per grade and bed line the state arrays (six float64 and an int32); per
+// state one decision byte; per station and grade the windows and decision
+// offsets; the drop candidates in flight (at most every state of every
+// slot that can be pending at once, 16 bytes each); and the scratch of the
+// drop candidates. It returns the bytes and the number of states.
+func (p *core) footprint(wlo, whi [][]int, kmin, kmax []int) (bytes, states int64) {
+	n, G := len(p.c), len(p.grades)
+	var span, widest int64
+	perStation := make([]int64, n)
 	for g := 0; g < G; g++ {
-		span += int64(kmax[g] - kmin[g] + 1)
+		m := int64(kmax[g] - kmin[g] + 1)
+		span += m
+		widest = max(widest, m)
 		for i := 0; i < n; i++ {
-			states0 += int64(max(0, whi[g][i]-wlo[g][i]+1))
+			w := int64(max(0, whi[g][i]-wlo[g][i]+1))
+			states += w
+			perStation[i] += w
 		}
 	}
-	if need := span*36 + states0 + int64(n)*int64(G)*16; p.maxMemory > 0 && need > p.maxMemory {
+	// Slots pending at once: one per drop station and distinct arrival,
+	// alive from the drop station to the arrival.
+	live := make([]int32, n+1)
+	for j := 0; j < n; j++ {
+		for h := range p.arrive {
+			a := p.arrive[h][j]
+			if a < 0 {
+				continue
+			}
+			seen := false
+			for e := 0; e < h; e++ {
+				seen = seen || p.arrive[e][j] == a
+			}
+			if !seen {
+				live[j]++
+				live[a]--
+			}
+		}
+	}
+	var maxLive, run, maxStation int64
+	for i := 0; i < n; i++ {
+		run += int64(live[i])
+		maxLive = max(maxLive, run)
+		maxStation = max(maxStation, perStation[i])
+	}
+	maxH := 0
+	for _, h := range p.hSteps {
+		maxH = max(maxH, h)
+	}
+	scratch := (int64(G)*widest + int64(maxH)) * 9 // drop candidate scratch (cost and grade)
+	scratch += widest * 16                         // mid-section areas
+	bytes = span*52 + states + int64(n)*int64(G)*24 + maxLive*maxStation*16 + scratch
+	return bytes, states
+}
+
+// solve runs the dynamic programme. It returns the least-cost plan or an
+// *InfeasibleError.
+//
+// The free state of bed line k of grade g at a station is the least cost
+// of a profile that reaches it and may drop there. A drop candidate made at
+// station j for line k of grade g waits in a slot until the station a where
+// the next drop may sit, and joins the free state of line k there if it is
+// cheaper and the line stayed inside the window from j to a. Candidates
+// that cannot win are dropped at j (pruning of dominated states): the
+// candidate for line k is stored relative to the line's running earthwork
+// as v = cost + drop − p_j[k], exactly as it is compared at a with the free
+// state f_a[k]; along one unbroken run of the line (since[k] ≤ j) f only
+// falls (it is lowered by merges, and reset only when the line leaves the
+// window, which restarts since[k] after j), so f_a[k] ≤ f_j[k]. A
+// candidate with v ≥ f_j[k] therefore fails the merge at a whatever happens
+// in between: it is a state at the same station, grade and bed line as the
+// free state, no cheaper, and more constrained (it may not drop before a),
+// so discarding it changes neither the optimum nor any decision byte.
+func (p *core) solve() (*solution, error) {
+	n, G, H := len(p.c), len(p.grades), len(p.heights)
+	wlo, whi, kmin, kmax := p.windows()
+	// Bound the work before allocating.
+	need, states0 := p.footprint(wlo, whi, kmin, kmax)
+	if p.maxMemory > 0 && need > p.maxMemory {
 		return nil, &TooBigError{States: states0, Bytes: need, Limit: p.maxMemory}
 	}
-	// Per-grade state arrays over the bed-line index range.
-	ft := make([][]float64, G) // cost so far minus running earthwork of the bed line
-	pr := make([][]float64, G) // running earthwork of the bed line since it became feasible
-	ec := make([][]float64, G) // cut area at the previous station
-	ef := make([][]float64, G) // fill area at the previous station
-	since := make([][]int32, G)
+	HG := H * G
+	if HG > 255 {
+		return nil, fmt.Errorf("%w: %d drop heights × %d grades is too many; use at most 255 combinations", ErrInput, H, G)
+	}
 	inf := math.Inf(1)
+	ls := make([]lines, G)
+	widest := 0
 	for g := 0; g < G; g++ {
 		m := kmax[g] - kmin[g] + 1
-		ft[g] = make([]float64, m)
-		pr[g] = make([]float64, m)
-		ec[g] = make([]float64, m)
-		ef[g] = make([]float64, m)
-		since[g] = make([]int32, m)
-		for x := range ft[g] {
-			ft[g][x] = inf
+		widest = max(widest, m)
+		block := make([]float64, 6*m)
+		L := &ls[g]
+		L.km, L.since, L.run = kmin[g], make([]int32, m), runsOf(p.sec[g])
+		L.f, L.p = block[0:m:m], block[m:2*m:2*m]
+		L.cut, L.fill = block[2*m:3*m:3*m], block[3*m:4*m:4*m]
+		L.cutPrev, L.fillPrev = block[4*m:5*m:5*m], block[5*m:]
+		for x := range L.f {
+			L.f[x] = inf
 		}
 	}
+	maxH := 0
+	for _, h := range p.hSteps {
+		maxH = max(maxH, h)
+	}
+	midCut, midFill := make([]float64, widest), make([]float64, widest)
 	// Decisions: one byte per state, 0 = no improving drop arrival here.
 	decOff := make([]int, n*G+1)
 	for i := 0; i < n; i++ {
@@ -191,10 +310,6 @@ func (p *core) solve() (*solution, error) {
 	}
 	dec := make([]uint8, decOff[n*G])
 	arrivals := make([][]int32, n) // drop station of each slot merged at a station
-	HG := H * G
-	if HG > 255 {
-		return nil, fmt.Errorf("%w: %d drop heights × %d grades is too many; use at most 255 combinations", ErrInput, H, G)
-	}
 	pending := make([][]*slot, n)
 	var free []*slot
 	newSlot := func(j, a int) *slot {
@@ -202,11 +317,11 @@ func (p *core) solve() (*solution, error) {
 		if k := len(free); k > 0 {
 			s, free = free[k-1], free[:k-1]
 		} else {
-			s = &slot{lo: make([]int, G), vals: make([][]float64, G), hg: make([][]uint8, G)}
+			s = &slot{ent: make([][]entry, G)}
 		}
 		s.j, s.a = j, a
-		for g := 0; g < G; g++ {
-			s.vals[g], s.hg[g] = s.vals[g][:0], s.hg[g][:0]
+		for g := range s.ent {
+			s.ent[g] = s.ent[g][:0]
 		}
 		return s
 	}
@@ -218,13 +333,16 @@ func (p *core) solve() (*solution, error) {
 		if wlo[g][0] > whi[g][0] {
 			continue
 		}
-		x := 0 - kmin[g]
-		ft[g][x], pr[g][x], since[g][x] = 0, 0, 0
-		ec[g][x], ef[g][x] = p.sec[g].Areas(0, p.z0)
+		L := &ls[g]
+		x := 0 - L.km
+		L.f[x], L.p[x], L.since[x] = 0, 0, 0
+		L.cut[x], L.fill[x] = p.sec[g].Areas(0, p.z0)
 	}
 	live := false
 	for g := 0; g < G; g++ {
 		live = live || wlo[g][0] <= whi[g][0]
+		L := &ls[g]
+		L.cut, L.cutPrev, L.fill, L.fillPrev = L.cutPrev, L.cut, L.fillPrev, L.fill
 	}
 	// conflicts collects every stretch where no profile survives; after one
 	// the programme restarts from every bed line that meets the bounds, as
@@ -238,8 +356,10 @@ func (p *core) solve() (*solution, error) {
 
 	rep := make([]int, G)
 	off := make([]int, G)
-	var bScratch []float64
-	var bArg []uint8
+	bCost := make([]float64, widest+maxH)
+	bArg := make([]uint8, widest+maxH)
+	var arrAt []int  // distinct arrival stations of the drops at a station
+	var arrH [][]int // heights arriving at each
 	pendingLive := 0
 	lastLive := 0
 
@@ -247,64 +367,10 @@ func (p *core) solve() (*solution, error) {
 		l := p.c[i] - p.c[i-1]
 		di := p.c[i] - p.c[0]
 		for g := 0; g < G; g++ {
-			olo, ohi := wlo[g][i-1], whi[g][i-1]
-			nlo, nhi := wlo[g][i], whi[g][i]
-			f, pp, cc, ff, sn := ft[g], pr[g], ec[g], ef[g], since[g]
-			km := kmin[g]
-			for k := olo; k <= ohi; k++ { // states that leave the window die
-				if k < nlo || k > nhi {
-					x := k - km
-					if f[x] < inf {
-						if k < nlo {
-							killMask[i] |= 1 << p.loWhy[g][i]
-						} else {
-							killMask[i] |= 1 << p.hiWhy[g][i]
-						}
-					}
-					f[x] = inf
-				}
-			}
-			sec := p.sec[g]
-			s := p.grades[g]
-			// Bed lines entering the window start a new feasible run.
-			for k := nlo; k <= nhi; k++ {
-				if k >= olo && k <= ohi {
-					continue
-				}
-				x := k - km
-				sn[x], pp[x], f[x] = int32(i), 0, inf
-			}
-			// Bed lines in the window at both stations add the segment's
-			// earthwork; every line in the window records its end areas.
-			a, bnd := max(nlo, olo), min(nhi, ohi)
-			zb := p.z0 - s*di
-			if p.volume == earthwork.AverageEndArea && a <= bnd {
-				hl := l / 2
-				for k := a; k <= bnd; k++ {
-					x := k - km
-					ac, af := sec.Areas(i, zb+float64(k)*p.step)
-					pp[x] += p.earthwork(hl*(cc[x]+ac), hl*(ff[x]+af))
-					cc[x], ff[x] = ac, af
-				}
-			} else if a <= bnd {
-				for k := a; k <= bnd; k++ {
-					x := k - km
-					z := zb + float64(k)*p.step
-					ac, af := sec.Areas(i, z)
-					cm, fm := sec.MidAreas(i, z+s*l, z)
-					pp[x] += p.earthwork(earthwork.PrismoidalVolume(l, cc[x], cm, ac), earthwork.PrismoidalVolume(l, ff[x], fm, af))
-					cc[x], ff[x] = ac, af
-				}
-			}
-			for k := nlo; k <= nhi; k++ {
-				if k >= a && k <= bnd {
-					k = bnd
-					continue
-				}
-				x := k - km
-				cc[x], ff[x] = sec.Areas(i, zb+float64(k)*p.step)
-			}
-			states += int64(max(0, nhi-nlo+1))
+			L := &ls[g]
+			states += int64(max(0, whi[g][i]-wlo[g][i]+1))
+			p.advance(L, g, i, l, di, wlo[g][i-1], whi[g][i-1], wlo[g][i], whi[g][i], killMask, midCut, midFill)
+			L.cut, L.cutPrev, L.fill, L.fillPrev = L.cutPrev, L.cut, L.fillPrev, L.fill
 		}
 		// Drop arrivals: the next drop may sit here.
 		for si, sl := range pending[i] {
@@ -313,21 +379,20 @@ func (p *core) solve() (*solution, error) {
 			}
 			arrivals[i] = append(arrivals[i], int32(sl.j))
 			for g := 0; g < G; g++ {
-				vals := sl.vals[g]
-				if len(vals) == 0 {
-					continue
-				}
-				lo := max(sl.lo[g], wlo[g][i])
-				hi := min(sl.lo[g]+len(vals)-1, whi[g][i])
-				f, sn := ft[g], since[g]
-				km := kmin[g]
-				dbase := decOff[i*G+g] - wlo[g][i]
-				for k := lo; k <= hi; k++ {
-					v := vals[k-sl.lo[g]]
-					x := k - km
-					if v < f[x] && int(sn[x]) <= sl.j {
-						f[x] = v
-						dec[dbase+k] = uint8(1 + si*HG + int(sl.hg[g][k-sl.lo[g]]))
+				L := &ls[g]
+				lo, hi := wlo[g][i], whi[g][i]
+				f, sn := L.f, L.since
+				dbase := decOff[i*G+g] - lo
+				j := int32(sl.j)
+				base := uint8(1 + si*HG)
+				for _, e := range sl.ent[g] {
+					k := int(e.k)
+					if k < lo || k > hi {
+						continue
+					}
+					if x := k - L.km; e.v < f[x] && sn[x] <= j {
+						f[x] = e.v
+						dec[dbase+k] = base + e.code
 					}
 				}
 			}
@@ -352,18 +417,19 @@ func (p *core) solve() (*solution, error) {
 		}
 		if reseed { // restart after a conflict: every bed line here is a start
 			for g := 0; g < G; g++ {
+				L := &ls[g]
 				for k := wlo[g][i]; k <= whi[g][i]; k++ {
-					x := k - kmin[g]
-					ft[g][x], pr[g][x], since[g][x] = 0, 0, int32(i)
+					x := k - L.km
+					L.f[x], L.p[x], L.since[x] = 0, 0, int32(i)
 				}
 			}
 			reseed = false
 		}
 		any := false
 		for g := 0; g < G && !any; g++ {
-			f := ft[g]
+			L := &ls[g]
 			for k := wlo[g][i]; k <= whi[g][i]; k++ {
-				if f[k-kmin[g]] < inf {
+				if L.f[k-L.km] < inf {
 					any = true
 					break
 				}
@@ -379,12 +445,29 @@ func (p *core) solve() (*solution, error) {
 		if !any || i == n-1 {
 			continue
 		}
-		// Drop candidates at station i.
-		dropHere := false
+		// Drop candidates at station i: the distinct arrivals, each with
+		// the heights that arrive there in rising order.
+		arrAt, arrH = arrAt[:0], arrH[:0]
 		for h := 0; h < H; h++ {
-			dropHere = dropHere || p.arrive[h][i] >= 0
+			a := p.arrive[h][i]
+			if a < 0 {
+				continue
+			}
+			x := 0
+			for x < len(arrAt) && arrAt[x] != a {
+				x++
+			}
+			if x == len(arrAt) {
+				arrAt = append(arrAt, a)
+				if x < cap(arrH) {
+					arrH = append(arrH, arrH[:x+1][x][:0])
+				} else {
+					arrH = append(arrH, nil)
+				}
+			}
+			arrH[x] = append(arrH[x], h)
 		}
-		if !dropHere {
+		if len(arrAt) == 0 {
 			continue
 		}
 		p.phaseOffsets(i, rep, off)
@@ -392,52 +475,51 @@ func (p *core) solve() (*solution, error) {
 			if rep[r] != r {
 				continue
 			}
-			blo, bhi := math.MaxInt, math.MinInt
+			// b[y]: the least free cost over the group's grades on the bed
+			// line k = y + blo − off[g], and which grade holds it; padded
+			// with maxH infinities so every drop's source index is inside.
+			blo, bhi, members := math.MaxInt, math.MinInt, 0
 			for g := 0; g < G; g++ {
 				if rep[g] == r && wlo[g][i] <= whi[g][i] {
 					blo = min(blo, wlo[g][i]-off[g])
 					bhi = max(bhi, whi[g][i]-off[g])
+					members++
 				}
 			}
 			if blo > bhi {
 				continue
 			}
 			m := bhi - blo + 1
-			if cap(bScratch) < m {
-				bScratch = make([]float64, m)
-				bArg = make([]uint8, m)
-			}
-			b, barg := bScratch[:m], bArg[:m]
-			for x := range b {
-				b[x] = inf
-			}
-			for g := 0; g < G; g++ {
-				if rep[g] != r {
-					continue
+			bCost, bArg = grow(bCost, m+maxH), growU8(bArg, m+maxH)
+			b, barg := bCost, bArg
+			if members == 1 && wlo[r][i] <= whi[r][i] {
+				L := &ls[r]
+				x0 := wlo[r][i] - L.km
+				f, pp := L.f[x0:x0+m], L.p[x0:x0+m]
+				for y := range f {
+					b[y], barg[y] = f[y]+pp[y], uint8(r)
 				}
-				f, pp := ft[g], pr[g]
-				for k := wlo[g][i]; k <= whi[g][i]; k++ {
-					x := k - kmin[g]
-					if f[x] < inf {
-						v := f[x] + pp[x]
-						if y := k - off[g] - blo; v < b[y] {
-							b[y], barg[y] = v, uint8(g)
+				for y := m; y < len(b); y++ {
+					b[y] = inf
+				}
+			} else {
+				for y := range b {
+					b[y] = inf
+				}
+				for g := 0; g < G; g++ {
+					if rep[g] != r {
+						continue
+					}
+					L := &ls[g]
+					for k := wlo[g][i]; k <= whi[g][i]; k++ {
+						x := k - L.km
+						if v := L.f[x] + L.p[x]; v < b[k-off[g]-blo] {
+							b[k-off[g]-blo], barg[k-off[g]-blo] = v, uint8(g)
 						}
 					}
 				}
 			}
-			for h0 := 0; h0 < H; h0++ {
-				a := p.arrive[h0][i]
-				if a < 0 {
-					continue
-				}
-				seen := false
-				for h := 0; h < h0; h++ {
-					seen = seen || p.arrive[h][i] == a
-				}
-				if seen {
-					continue // handled with the first height arriving at a
-				}
+			for ai, a := range arrAt {
 				// One slot per (drop station, arrival) holds every target
 				// grade and every height arriving there; find or make it.
 				var sl *slot
@@ -455,36 +537,9 @@ func (p *core) solve() (*solution, error) {
 					if rep[g] != r || wlo[g][i] > whi[g][i] {
 						continue
 					}
-					lo, hi := wlo[g][i], whi[g][i]
-					sl.lo[g] = lo
-					vals := grow(sl.vals[g], hi-lo+1)
-					hg := growU8(sl.hg[g], hi-lo+1)
-					for x := range vals {
-						vals[x] = inf
-					}
-					for h := h0; h < H; h++ {
-						if p.arrive[h][i] != a {
-							continue
-						}
-						dc := p.dropCost[h]
-						sh := p.hSteps[h] - off[g] - blo // y = k + sh indexes b
-						k0, k1 := max(lo, -sh), min(hi, m-1-sh)
-						code := uint8(h * G)
-						for k := k0; k <= k1; k++ {
-							y := k + sh
-							if v := b[y] + dc; v < vals[k-lo] {
-								vals[k-lo], hg[k-lo] = v, code+barg[y]
-							}
-						}
-					}
-					pp := pr[g][lo-kmin[g]:]
-					for x, v := range vals {
-						if v < inf {
-							vals[x] = v - pp[x]
-							anyV = true
-						}
-					}
-					sl.vals[g], sl.hg[g] = vals, hg
+					var finite bool
+					sl.ent[g], finite = p.candidates(&ls[g], g, wlo[g][i], whi[g][i], off[g]+blo, b, barg, arrH[ai], sl.ent[g][:0])
+					anyV = anyV || finite
 				}
 				if fresh {
 					if anyV {
@@ -501,9 +556,10 @@ func (p *core) solve() (*solution, error) {
 	// Best end state.
 	best, bg, bk := inf, -1, 0
 	for g := 0; g < G; g++ {
+		L := &ls[g]
 		for k := wlo[g][n-1]; k <= whi[g][n-1]; k++ {
-			x := k - kmin[g]
-			if v := ft[g][x] + pr[g][x]; v < best {
+			x := k - L.km
+			if v := L.f[x] + L.p[x]; v < best {
 				best, bg, bk = v, g, k
 			}
 		}
@@ -547,6 +603,169 @@ func (p *core) solve() (*solution, error) {
 		sol.k = append(sol.k, revK[x])
 	}
 	return sol, nil
+}
+
+// advance carries grade g's lines L from station i−1 (window olo..ohi) to
+// station i (window nlo..nhi), l metres on and di from the start: lines
+// that leave the window die (their bound is noted in killMask), lines that
+// enter start a new feasible run, lines in both windows add the segment's
+// earthwork, and every line in the window gets its areas at i in L.cut and
+// L.fill (L.cutPrev, L.fillPrev hold those at i−1).
+func (p *core) advance(L *lines, g, i int, l, di float64, olo, ohi, nlo, nhi int, killMask []uint8, midCut, midFill []float64) {
+	inf := math.Inf(1)
+	km := L.km
+	f, pp, sn := L.f, L.p, L.since
+	if olo <= ohi {
+		for k := olo; k <= min(ohi, nlo-1); k++ { // below the window
+			if f[k-km] < inf {
+				killMask[i] |= 1 << p.loWhy[g][i]
+			}
+			f[k-km] = inf
+		}
+		for k := max(olo, nlo, nhi+1); k <= ohi; k++ { // above it
+			if f[k-km] < inf {
+				killMask[i] |= 1 << p.hiWhy[g][i]
+			}
+			f[k-km] = inf
+		}
+	}
+	if nlo > nhi {
+		return
+	}
+	enter := func(lo, hi int) {
+		for k := lo; k <= hi; k++ {
+			x := k - km
+			sn[x], pp[x], f[x] = int32(i), 0, inf
+		}
+	}
+	a, bnd := max(nlo, olo), min(nhi, ohi)
+	if olo > ohi || a > bnd {
+		enter(nlo, nhi)
+	} else {
+		enter(nlo, a-1)
+		enter(bnd+1, nhi)
+	}
+	s := p.grades[g]
+	zb := p.z0 - s*di
+	L.run.AreasRun(i, zb, p.step, nlo, L.cut[nlo-km:nhi-km+1], L.fill[nlo-km:nhi-km+1])
+	if a > bnd {
+		return
+	}
+	// Lines in the window at both stations add the segment's earthwork.
+	x0, x1 := a-km, bnd-km+1
+	pp = pp[x0:x1]
+	c0, c1, f0, f1 := L.cutPrev[x0:x1], L.cut[x0:x1], L.fillPrev[x0:x1], L.fill[x0:x1]
+	c1, f0, f1 = c1[:len(pp)], f0[:len(pp)], f1[:len(pp)]
+	c0 = c0[:len(pp)]
+	if p.volume == earthwork.AverageEndArea {
+		hl := l / 2
+		for x := range pp {
+			pp[x] += p.earthwork(hl*(c0[x]+c1[x]), hl*(f0[x]+f1[x]))
+		}
+		return
+	}
+	mc, mf := midCut[:len(pp)], midFill[:len(pp)]
+	L.run.MidAreasRun(i, zb, p.step, s*l, a, mc, mf)
+	for x := range pp {
+		pp[x] += p.earthwork(earthwork.PrismoidalVolume(l, c0[x], mc[x], c1[x]), earthwork.PrismoidalVolume(l, f0[x], mf[x], f1[x]))
+	}
+}
+
+// candidates appends to out the drop candidates at station i into grade
+// g's lines L (window lo..hi) that may still win (see solve): for line k
+// the least of b[k − shift + hSteps[h]] + dropCost[h] over the heights hs
+// (in rising order, the first of equal costs), less the line's running
+// earthwork, kept only below the line's free state. finite reports whether
+// any candidate, kept or not, has a finite cost: such a slot stays pending
+// (as before pruning), which keeps the conflicts found for an infeasible
+// problem as they were.
+func (p *core) candidates(L *lines, g, lo, hi, shift int, b []float64, barg []uint8, hs []int, out []entry) (_ []entry, finite bool) {
+	G := len(p.grades)
+	x0 := lo - L.km
+	nx := hi - lo + 1
+	f, pp := L.f[x0:x0+nx], L.p[x0:x0+nx]
+	n0 := len(out)
+	// src returns the costs b seen by line lo + x through height h at x.
+	src := func(h int) []float64 {
+		y0 := lo - shift + p.hSteps[h]
+		return b[y0 : y0+nx]
+	}
+	switch len(hs) {
+	case 1:
+		out = keep1(out, lo, f, pp, src(hs[0]), p.dropCost[hs[0]])
+	case 2:
+		out = keep2(out, lo, f, pp, src(hs[0]), src(hs[1]), p.dropCost[hs[0]], p.dropCost[hs[1]])
+	case 3:
+		out = keep3(out, lo, f, pp, src(hs[0]), src(hs[1]), src(hs[2]), p.dropCost[hs[0]], p.dropCost[hs[1]], p.dropCost[hs[2]])
+	default:
+		inf := math.Inf(1)
+		for x := range f {
+			v := inf
+			for _, h := range hs {
+				v = min(v, b[lo+x-shift+p.hSteps[h]]+p.dropCost[h])
+			}
+			if r := v - pp[x]; r < f[x] {
+				out = append(out, entry{v: r, k: int32(lo + x)})
+			}
+		}
+	}
+	// The height of each kept candidate: the first whose cost is the least.
+	kept := out[n0:]
+	for e := range kept {
+		x := int(kept[e].k) - lo
+		v, hv := math.Inf(1), 0
+		for _, h := range hs {
+			if t := src(h)[x] + p.dropCost[h]; t < v {
+				v, hv = t, h
+			}
+		}
+		kept[e].code = uint8(hv*G) + barg[lo+x-shift+p.hSteps[hv]]
+	}
+	if len(kept) > 0 {
+		return out, true
+	}
+	// Nothing kept: is any candidate finite at all?
+	for _, h := range hs {
+		for _, v := range src(h) {
+			if v+p.dropCost[h] < math.Inf(1) {
+				return out, true
+			}
+		}
+	}
+	return out, false
+}
+
+// keep1, keep2 and keep3 append the candidates r = min over heights of
+// (b_h[x] + d_h) − pp[x] that lie below f[x], for one, two or three heights
+// (code left 0).
+func keep1(out []entry, lo int, f, pp, b0 []float64, d0 float64) []entry {
+	pp, b0 = pp[:len(f)], b0[:len(f)]
+	for x := range f {
+		if r := b0[x] + d0 - pp[x]; r < f[x] {
+			out = append(out, entry{v: r, k: int32(lo + x)})
+		}
+	}
+	return out
+}
+
+func keep2(out []entry, lo int, f, pp, b0, b1 []float64, d0, d1 float64) []entry {
+	pp, b0, b1 = pp[:len(f)], b0[:len(f)], b1[:len(f)]
+	for x := range f {
+		if r := min(b0[x]+d0, b1[x]+d1) - pp[x]; r < f[x] {
+			out = append(out, entry{v: r, k: int32(lo + x)})
+		}
+	}
+	return out
+}
+
+func keep3(out []entry, lo int, f, pp, b0, b1, b2 []float64, d0, d1, d2 float64) []entry {
+	pp, b0, b1, b2 = pp[:len(f)], b0[:len(f)], b1[:len(f)], b2[:len(f)]
+	for x := range f {
+		if r := min(b0[x]+d0, b1[x]+d1, b2[x]+d2) - pp[x]; r < f[x] {
+			out = append(out, entry{v: r, k: int32(lo + x)})
+		}
+	}
+	return out
 }
 
 func grow(s []float64, n int) []float64 {
