@@ -240,14 +240,21 @@ func newDEM(ds *godal.Dataset, path, zu string, zf float64, vr Range, opt Option
 	if st.SizeX < 2 || st.SizeY < 2 {
 		return nil, fmt.Errorf("raster is %d×%d cells; at least 2×2 are needed", st.SizeX, st.SizeY)
 	}
-	wkt := ds.Projection()
-	if wkt == "" {
-		return nil, ErrNoCRS
+	crs, fast := CRS{}, false
+	if ds.Driver().ShortName() == "GTiff" {
+		crs, fast = geoTIFFCRS(path)
 	}
-	crs, err := CRSInfo(wkt)
-	if err != nil {
-		return nil, fmt.Errorf("the DEM's CRS: %w", err)
+	if !fast {
+		wkt := ds.Projection()
+		if wkt == "" {
+			return nil, ErrNoCRS
+		}
+		if crs, err = CRSInfo(wkt); err != nil {
+			return nil, fmt.Errorf("the DEM's CRS: %w", err)
+		}
+		crs.WKT = wkt
 	}
+	wkt := crs.WKT
 	band := ds.Bands()[0]
 	bs := band.Structure()
 	nd, hasND := band.NoData()

@@ -75,6 +75,12 @@
 // linear unit is, so it can decide where to measure chainage; its results
 // are cached too. CRS definitions are never read from files or URLs.
 //
+// The CRS of a local GeoTIFF whose GeoKeys are the plain ones GDAL writes
+// for a projected CRS given by EPSG code (and no side-car or option that
+// could change it) is built from that code directly, which is what GDAL
+// does for such keys with fewer PROJ database lookups first; any other DEM's
+// CRS is GDAL's reading (geokeys.go).
+//
 // Tests, the demo and the benchmark write rasters with [WriteGeoTIFF]: a
 // tiled, compressed GeoTIFF, written atomically.
 //
