@@ -2,7 +2,6 @@ package main
 
 import (
 	"context"
-	"errors"
 	"fmt"
 	"io"
 	"path/filepath"
@@ -279,7 +278,8 @@ func runPlan(ctx context.Context, args []string, stdout, stderr io.Writer) error
 	s.fs.Usage = func() {
 		fmt.Fprintln(stdout, "Usage: canalstep plan --dem DEM --alignment FILE --flow Q --bottom-width B --side-slope Z --roughness N --max-velocity V [flags]")
 		fmt.Fprintln(stdout, "\nPlaces drops on the sampled ground at least cost within the velocity limits and writes, per alignment,")
-		fmt.Fprintln(stdout, "DIR/<name>/ground.csv, ground.png, stations.csv, drops.csv, summary.json, profile.png and profile.svg.")
+		fmt.Fprintln(stdout, "DIR/<name>/: report.html, stations.csv, drops.csv, stakes.csv, plan.geojson, plan.gpkg, plan.xml,")
+		fmt.Fprintln(stdout, "longsection.pdf, crosssections.pdf, profile.png/svg, ground.csv/png, curves.csv (with curves) and summary.json.")
 		fmt.Fprintln(stdout, "Numbers are in the --units unit; each range below is the physical range a value must lie in.\n\nFlags:")
 		s.fs.PrintDefaults()
 		fmt.Fprintf(stdout, "\n%s\n", exitCodeHelp)
@@ -342,7 +342,7 @@ func (s *planSetup) run(ctx context.Context, stdout, stderr io.Writer, sets [][]
 	for _, j := range jobs {
 		names = append(names, alignment.SafeName(j.a.Name))
 		if j.err != nil {
-			text := textsafe.Clip(planErrorText(j.err, s.sys), 400)
+			text := textsafe.Clip(reasonText(j.err, s.sys), 400)
 			fail.add(j.a.Name, text, j.err)
 			fmt.Fprintf(stdout, "\n%s: FAILED: %s\n", textsafe.Terminal(j.a.Name), text)
 			continue
@@ -397,14 +397,6 @@ func anyFeasible(alts []planner.Alternative) bool {
 		}
 	}
 	return false
-}
-
-// planErrorText words a job's error for the terminal, in the user's units.
-func planErrorText(err error, u units.System) string {
-	if errors.Is(err, planner.ErrInfeasible) {
-		return report.ErrorText(err, u)
-	}
-	return err.Error()
 }
 
 // printPlanSummary prints the short summary of one plan.
@@ -524,7 +516,8 @@ func runCompare(ctx context.Context, args []string, stdout, stderr io.Writer) er
 	alts := s.fs.String("alternatives", "0.5;1.0;1.5;0.5,1.0,1.5", "drop-height sets to compare, ';' between sets and ',' within a set")
 	s.fs.Usage = func() {
 		fmt.Fprintln(stdout, "Usage: canalstep compare --dem DEM --alignment FILE --flow Q --bottom-width B --side-slope Z --roughness N --max-velocity V --alternatives \"0.5;1.0;0.5,1.0\" [flags]")
-		fmt.Fprintln(stdout, "\nPlans each alignment once per drop-height set and writes DIR/<name>/alternatives.csv and alternatives.png.")
+		fmt.Fprintln(stdout, "\nPlans each alignment once per drop-height set and writes DIR/<name>/alternatives.csv and alternatives.png")
+		fmt.Fprintln(stdout, "beside the least-cost alternative's plan (the files of 'canalstep plan').")
 		fmt.Fprintln(stdout, "Takes the flags of 'canalstep plan' (--drop-heights is replaced by --alternatives).\n\nFlags:")
 		s.fs.PrintDefaults()
 		fmt.Fprintf(stdout, "\n%s\n", exitCodeHelp)

@@ -79,7 +79,7 @@ func runProfile(ctx context.Context, args []string, stdout, stderr io.Writer) er
 		a := sc.Alignments[i]
 		names = append(names, alignment.SafeName(a.Name))
 		if errs[i] != nil {
-			text := textsafe.Clip(oneLineError(errs[i]), 400)
+			text := textsafe.Clip(reasonText(errs[i], sys), 400)
 			fail.add(a.Name, text, errs[i])
 			fmt.Fprintf(stdout, "%s: FAILED: %s\n", textsafe.Terminal(a.Name), text)
 			continue
