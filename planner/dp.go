@@ -492,12 +492,14 @@ func (p *core) solve() (*solution, error) {
 			m := bhi - blo + 1
 			bCost, bArg = grow(bCost, m+maxH), growU8(bArg, m+maxH)
 			b, barg := bCost, bArg
+			uniform := -1 // the one grade of every b, or −1 (barg tells)
 			if members == 1 && wlo[r][i] <= whi[r][i] {
+				uniform = r
 				L := &ls[r]
 				x0 := wlo[r][i] - L.km
 				f, pp := L.f[x0:x0+m], L.p[x0:x0+m]
 				for y := range f {
-					b[y], barg[y] = f[y]+pp[y], uint8(r)
+					b[y] = f[y] + pp[y]
 				}
 				for y := m; y < len(b); y++ {
 					b[y] = inf
@@ -519,6 +521,15 @@ func (p *core) solve() (*solution, error) {
 					}
 				}
 			}
+			// The finite costs lie in b[ylo..yhi]: targets whose every
+			// source is outside have no candidate.
+			ylo, yhi := 0, m-1
+			for ylo <= yhi && b[ylo] == inf {
+				ylo++
+			}
+			for yhi >= ylo && b[yhi] == inf {
+				yhi--
+			}
 			for ai, a := range arrAt {
 				// One slot per (drop station, arrival) holds every target
 				// grade and every height arriving there; find or make it.
@@ -538,7 +549,7 @@ func (p *core) solve() (*solution, error) {
 						continue
 					}
 					var finite bool
-					sl.ent[g], finite = p.candidates(&ls[g], g, wlo[g][i], whi[g][i], off[g]+blo, b, barg, arrH[ai], sl.ent[g][:0])
+					sl.ent[g], finite = p.candidates(&ls[g], wlo[g][i], whi[g][i], off[g]+blo, b, ylo, yhi, barg, uniform, arrH[ai], sl.ent[g][:0])
 					anyV = anyV || finite
 				}
 				if fresh {
@@ -671,38 +682,56 @@ func (p *core) advance(L *lines, g, i int, l, di float64, olo, ohi, nlo, nhi int
 	}
 }
 
-// candidates appends to out the drop candidates at station i into grade
-// g's lines L (window lo..hi) that may still win (see solve): for line k
-// the least of b[k − shift + hSteps[h]] + dropCost[h] over the heights hs
-// (in rising order, the first of equal costs), less the line's running
-// earthwork, kept only below the line's free state. finite reports whether
-// any candidate, kept or not, has a finite cost: such a slot stays pending
-// (as before pruning), which keeps the conflicts found for an infeasible
-// problem as they were.
-func (p *core) candidates(L *lines, g, lo, hi, shift int, b []float64, barg []uint8, hs []int, out []entry) (_ []entry, finite bool) {
+// candidates appends to out the drop candidates at station i into the
+// lines L of one grade (window lo..hi) that may still win (see solve): for
+// line k the least of b[k − shift + hSteps[h]] + dropCost[h] over the
+// heights hs (in rising order, the first of equal costs), less the line's
+// running earthwork, kept only below the line's free state. The grade of
+// the reach upstream is uniform, or barg's where uniform < 0. finite
+// reports whether any candidate, kept or not, has a finite cost: such a
+// slot stays pending (as before pruning), which keeps the conflicts found
+// for an infeasible problem as they were. Every finite b lies in
+// b[ylo..yhi].
+func (p *core) candidates(L *lines, lo, hi, shift int, b []float64, ylo, yhi int, barg []uint8, uniform int, hs []int, out []entry) (_ []entry, finite bool) {
 	G := len(p.grades)
+	// Line k reads b[k − shift + hSteps[h]]: keep the lines that read a
+	// finite cost through some height.
+	smin, smax := math.MaxInt, math.MinInt
+	for _, h := range hs {
+		smin, smax = min(smin, p.hSteps[h]), max(smax, p.hSteps[h])
+	}
+	lo, hi = max(lo, ylo+shift-smax), min(hi, yhi+shift-smin)
+	if lo > hi {
+		return out, false
+	}
 	x0 := lo - L.km
 	nx := hi - lo + 1
 	f, pp := L.f[x0:x0+nx], L.p[x0:x0+nx]
 	n0 := len(out)
-	// src returns the costs b seen by line lo + x through height h at x.
-	src := func(h int) []float64 {
+	// bs[q]: the costs b seen by line lo + x through height hs[q] at x.
+	var bsA [3][]float64
+	var dsA [3]float64
+	bs, ds := bsA[:0], dsA[:0]
+	if len(hs) > len(bsA) {
+		bs, ds = make([][]float64, 0, len(hs)), make([]float64, 0, len(hs))
+	}
+	for _, h := range hs {
 		y0 := lo - shift + p.hSteps[h]
-		return b[y0 : y0+nx]
+		bs, ds = append(bs, b[y0:y0+nx]), append(ds, p.dropCost[h])
 	}
 	switch len(hs) {
 	case 1:
-		out = keep1(out, lo, f, pp, src(hs[0]), p.dropCost[hs[0]])
+		out = keep1(out, lo, f, pp, bs[0], ds[0])
 	case 2:
-		out = keep2(out, lo, f, pp, src(hs[0]), src(hs[1]), p.dropCost[hs[0]], p.dropCost[hs[1]])
+		out = keep2(out, lo, f, pp, bs[0], bs[1], ds[0], ds[1])
 	case 3:
-		out = keep3(out, lo, f, pp, src(hs[0]), src(hs[1]), src(hs[2]), p.dropCost[hs[0]], p.dropCost[hs[1]], p.dropCost[hs[2]])
+		out = keep3(out, lo, f, pp, bs[0], bs[1], bs[2], ds[0], ds[1], ds[2])
 	default:
 		inf := math.Inf(1)
 		for x := range f {
 			v := inf
-			for _, h := range hs {
-				v = min(v, b[lo+x-shift+p.hSteps[h]]+p.dropCost[h])
+			for q := range bs {
+				v = min(v, bs[q][x]+ds[q])
 			}
 			if r := v - pp[x]; r < f[x] {
 				out = append(out, entry{v: r, k: int32(lo + x)})
@@ -713,21 +742,25 @@ func (p *core) candidates(L *lines, g, lo, hi, shift int, b []float64, barg []ui
 	kept := out[n0:]
 	for e := range kept {
 		x := int(kept[e].k) - lo
-		v, hv := math.Inf(1), 0
-		for _, h := range hs {
-			if t := src(h)[x] + p.dropCost[h]; t < v {
-				v, hv = t, h
+		v, qv := math.Inf(1), 0
+		for q := range bs {
+			if t := bs[q][x] + ds[q]; t < v {
+				v, qv = t, q
 			}
 		}
-		kept[e].code = uint8(hv*G) + barg[lo+x-shift+p.hSteps[hv]]
+		g := uniform
+		if g < 0 {
+			g = int(barg[lo+x-shift+p.hSteps[hs[qv]]])
+		}
+		kept[e].code = uint8(hs[qv]*G + g)
 	}
 	if len(kept) > 0 {
 		return out, true
 	}
 	// Nothing kept: is any candidate finite at all?
-	for _, h := range hs {
-		for _, v := range src(h) {
-			if v+p.dropCost[h] < math.Inf(1) {
+	for q := range bs {
+		for _, v := range bs[q] {
+			if v+ds[q] < math.Inf(1) {
 				return out, true
 			}
 		}
