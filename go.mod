@@ -9,6 +9,7 @@ require (
 	github.com/paulmach/orb v0.14.0
 	github.com/schollz/progressbar/v3 v3.19.1
 	github.com/spf13/pflag v1.1.0
+	go.yaml.in/yaml/v3 v3.0.6
 	golang.org/x/term v0.44.0
 	golang.org/x/text v0.28.0
 	gonum.org/v1/plot v0.17.0

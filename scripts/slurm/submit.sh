@@ -22,7 +22,10 @@
 # Prints the array and merge job IDs. Without --wait it exits 0 once both are
 # queued; with --wait it exits with the merge job's status: 0 when every job
 # of every shard succeeded, non-zero when any failed (the merged index says
-# which) or a shard wrote no folder.
+# which) or a shard wrote no folder. --wait asks scontrol for the merge
+# job's state every second for the first minute, then every 10 s (sbatch's
+# own --wait polls at up to 10 s from the start, which made short batches
+# wait 30 s after their merge had ended).
 set -euo pipefail
 
 here=$(cd "$(dirname "$0")" && pwd)
@@ -74,26 +77,50 @@ array_id=${array_id%%;*} # --parsable prints "ID" or "ID;CLUSTER"
 echo "submit: shards: job array $array_id (--array=$array) -> $out/shard-1 … shard-$shards"
 
 merge_args=(--parsable --dependency="afterany:$array_id" --output="$out/logs/merge-%j.out")
-if [ "$wait" = 1 ]; then
-	merge_args+=(--wait)
-	echo "submit: submitting the merge and waiting for it (sbatch --wait)"
-fi
-set +e
 merge_id=$(sbatch "${merge_args[@]}" "${extra[@]}" "$here/merge.sbatch" \
-	"$out" "$shards" "${bin:-canalstep}" "${merged:-$out/merged}")
-rc=$?
-set -e
+	"$out" "$shards" "${bin:-canalstep}" "${merged:-$out/merged}") || merge_id=""
 merge_id=${merge_id%%;*}
 if [ -z "$merge_id" ]; then
-	echo "submit: the merge job was not submitted (sbatch exit $rc); cancel the shards with: scancel $array_id" >&2
+	echo "submit: the merge job was not submitted; cancel the shards with: scancel $array_id" >&2
 	exit 1
 fi
 echo "submit: merge: job $merge_id after every shard (afterany:$array_id) -> ${merged:-$out/merged}"
-if [ "$wait" = 1 ]; then
-	if [ "$rc" -eq 0 ]; then
-		echo "submit: merge job $merge_id succeeded: every job of every shard succeeded"
-	else
-		echo "submit: merge job $merge_id exited $rc: some job or shard failed; see ${merged:-$out/merged} and $out/logs/" >&2
+[ "$wait" = 1 ] || exit 0
+
+# job_end ID prints "STATE EXITCODE" (e.g. "FAILED 1:0") once job ID has
+# ended, nothing while it is pending or running; it fails when scontrol
+# does not know the job.
+job_end() {
+	local line state code
+	line=$(scontrol -o show job "$1" 2>/dev/null) || return 1
+	state=$(printf '%s\n' "$line" | tr ' ' '\n' | sed -n 's/^JobState=//p' | head -1)
+	code=$(printf '%s\n' "$line" | tr ' ' '\n' | sed -n 's/^ExitCode=//p' | head -1)
+	[ -n "$state" ] || return 1
+	case "$state" in
+	PENDING | CONFIGURING | RUNNING | COMPLETING | SUSPENDED | REQUEUED | RESIZING | SIGNALING | STAGE_OUT | RESV_DEL_HOLD | REQUEUE_FED | REQUEUE_HOLD | SPECIAL_EXIT | STOPPED) ;;
+	*) echo "$state $code" ;;
+	esac
+}
+
+echo "submit: waiting for the merge job $merge_id"
+polls=0 end=""
+while :; do
+	if ! end=$(job_end "$merge_id"); then
+		echo "submit: scontrol no longer knows the merge job $merge_id: see $out/logs/merge-$merge_id.out" >&2
+		exit 1
 	fi
-	exit "$rc"
+	[ -z "$end" ] || break
+	polls=$((polls + 1))
+	if [ "$polls" -le 60 ]; then sleep 1; else sleep 10; fi
+done
+state=${end%% *} code=${end#* }
+rc=${code%%:*} sig=${code#*:}
+case "$rc$sig" in *[!0-9]*) rc=1 sig=0 ;; esac
+if [ "$sig" != 0 ]; then rc=$((128 + sig)); fi
+if [ "$state" != COMPLETED ] && [ "$rc" -eq 0 ]; then rc=1; fi
+if [ "$rc" -eq 0 ]; then
+	echo "submit: merge job $merge_id succeeded: every job of every shard succeeded"
+else
+	echo "submit: merge job $merge_id ended $state (exit code $code): some job or shard failed; see ${merged:-$out/merged} and $out/logs/" >&2
 fi
+exit "$rc"
