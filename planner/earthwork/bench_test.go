@@ -166,3 +166,10 @@ func BenchmarkLevelAreasRun(b *testing.B) {
 	_, _, g := benchSections(1000, 10)
 	benchAreasRun(b, Level(sheetTemplate, g), g)
 }
+
+// BenchmarkCrossAreasRun40 is BenchmarkCrossAreas40 through AreasRun (the
+// optimiser's way): the section prepared once a run of 600 beds.
+func BenchmarkCrossAreasRun40(b *testing.B) {
+	o, l, g := benchSections(1000, 40)
+	benchAreasRun(b, mustCross(b, sheetTemplate, o, l, tableMax), g)
+}
