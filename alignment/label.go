@@ -28,20 +28,34 @@ const maxLabelUnits = 1e12
 // no sign). NaN, infinities and magnitudes of 1e12 units or more are
 // written as plain numbers, which ParseStation refuses.
 func FormatStation(chainageM float64, us bool) string {
+	return string(AppendStation(make([]byte, 0, 16), chainageM, us))
+}
+
+// AppendStation appends FormatStation(chainageM, us) to b.
+func AppendStation(b []byte, chainageM float64, us bool) []byte {
 	v, station, width := chainageM, int64(1000), 3
 	if us {
 		v, station, width = chainageM/FootM, 100, 2
 	}
 	if !labelled(chainageM, us) {
-		return strconv.FormatFloat(chainageM, 'f', -1, 64)
+		return strconv.AppendFloat(b, chainageM, 'f', -1, 64)
 	}
 	c := int64(math.Round(math.Abs(v) * 100)) // hundredths of the unit
-	sign := ""
 	if v < 0 && c != 0 {
-		sign = "-"
+		b = append(b, '-')
 	}
 	whole, rest := c/(station*100), c%(station*100)
-	return fmt.Sprintf("%s%d+%0*d.%02d", sign, whole, width, rest/100, rest%100)
+	b = strconv.AppendInt(b, whole, 10)
+	b = append(b, '+')
+	units := rest / 100
+	for p := int64(10); width > 1; width, p = width-1, p*10 {
+		if units < p {
+			b = append(b, '0')
+		}
+	}
+	b = strconv.AppendInt(b, units, 10)
+	f := rest % 100
+	return append(b, '.', byte('0'+f/10), byte('0'+f%10))
 }
 
 // ParseStation reads a station label written as FormatStation writes it and
