@@ -18,7 +18,6 @@ import (
 // the two levels), and the summary and stdout say the water surface is
 // above the ground at every station.
 func TestCommandMargin(t *testing.T) {
-	t.Parallel()
 	stdout, folder := runEast(t, "plan", 3, "--command-margin", "0.1")
 	rows := readCSV(t, filepath.Join(folder, "stations.csv"))
 	ws, g, m := column(t, rows[0], "water_surface_m"), column(t, rows[0], "ground_m"), column(t, rows[0], "margin_m")
@@ -50,7 +49,6 @@ func TestCommandMargin(t *testing.T) {
 // every alignment (stdout says so), a chainage control inside a table; and
 // that unknown properties are listed once each as ignored.
 func TestPerAlignmentControls(t *testing.T) {
-	t.Parallel()
 	dir := t.TempDir()
 	aln := writeGeoJSON(t, dir, "two.geojson",
 		demoLine(east, 3, "", map[string]any{"flow": 2.0, "roughness": 0.03, "colour": "blue"}),
@@ -145,7 +143,6 @@ func sameSet(a, b []float64) bool {
 // and right (positive) of the centre line at every station; --ground level
 // keeps level ground.
 func TestGroundModel(t *testing.T) {
-	t.Parallel()
 	dir := t.TempDir()
 	aln := writeGeoJSON(t, dir, "east.geojson", demoLine(east, 2, "", nil))
 	for _, c := range []struct{ flag, model, words string }{
@@ -180,7 +177,6 @@ func TestGroundModel(t *testing.T) {
 // either, so that no saving is stated. The cases' feasibility is checked,
 // not assumed.
 func TestSavingAgainstFeasibleBaseline(t *testing.T) {
-	t.Parallel()
 	dir := t.TempDir()
 	aln := writeGeoJSON(t, dir, "east.geojson", demoLine(east, 3, "", nil))
 	for _, c := range []struct {
@@ -206,7 +202,6 @@ func TestSavingAgainstFeasibleBaseline(t *testing.T) {
 // stderr, exit status 2 for bad input and 1 for a design no profile can
 // meet, and no alignment folder or staging left in --out.
 func TestIssue7BadInput(t *testing.T) {
-	t.Parallel()
 	dir := t.TempDir()
 	east4Line := demoLine(east, east4, "", nil)
 	aln := writeGeoJSON(t, dir, "east.geojson", east4Line)

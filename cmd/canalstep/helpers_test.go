@@ -202,7 +202,10 @@ func readSummary(t testing.TB, path string) map[string]any {
 }
 
 // runCmd runs canalstep in-process and returns its stdout, stderr (with
-// the error line main would print) and exit status.
+// the error line main would print) and exit status. Tests that run plan,
+// compare or batch in-process are not parallel: a run sets the PDFs'
+// process-wide date (report.SetPDFDate), which two runs at once would race
+// on. Tests of child processes (runBinary, start) may be parallel.
 func runCmd(t testing.TB, args ...string) (string, string, int) {
 	t.Helper()
 	var out, errb bytes.Buffer

@@ -124,7 +124,6 @@ func checkSaving(t testing.TB, sum map[string]any, stdout string) {
 // or scheduling order in its outputs. The provenance quotes the command
 // line, so its --jobs and --out are the one allowed difference.
 func TestPlanReproducible(t *testing.T) {
-	t.Parallel()
 	dir := t.TempDir()
 	aln := writeGeoJSON(t, dir, "two.geojson", demoLine(east, 2, "", nil), demoLine(west, 2, "", nil))
 	var trees [2]map[string][]byte
