@@ -30,7 +30,10 @@
 #
 # Both commands are idempotent: start when running checks the node and leaves
 # the daemons alone (it restarts them only when slurm.conf changed); stop when
-# nothing runs does nothing. stop ends only processes named in its own PID
+# nothing runs does nothing. stop cancels the jobs still queued or running
+# first, and a start of slurmctld without a running slurmd clears the jobs
+# of earlier runs (slurmctld -c): this cluster is for tests, not for work
+# that must outlive it. stop ends only processes named in its own PID
 # files, and only when their executable is the expected daemon. start and
 # stop need root (the daemons run jobs as the submitting user).
 set -euo pipefail
@@ -212,10 +215,16 @@ cmd_start() {
 	if pid=$(alive slurmctld); then
 		say "slurmctld already running (PID $pid)"
 	else
+		# -c: a fresh start forgets the jobs of an earlier run. A job that
+		# ran when that run ended (killed, or stopped under a running job)
+		# would be recovered as still running, hold the node's CPUs for
+		# minutes and leave every new job pending.
+		local clear=()
+		if ! alive slurmd >/dev/null; then clear=(-c); fi
 		rm -f "$dir/run/slurmctld.pid"
-		SLURM_CONF=$conf /usr/sbin/slurmctld -f "$conf" ||
+		SLURM_CONF=$conf /usr/sbin/slurmctld "${clear[@]}" -f "$conf" ||
 			die "slurmctld did not start; see $dir/log/slurmctld.log"
-		say "slurmctld started"
+		say "slurmctld started${clear:+ (earlier jobs cleared)}"
 	fi
 	if pid=$(alive slurmd); then
 		say "slurmd already running (PID $pid)"
@@ -262,6 +271,24 @@ stop_daemon() {
 	rm -f "$dir/run/$1.pid"
 }
 
+# cancel_jobs cancels every job of the cluster, when slurmctld runs, and
+# waits up to 20 s for them to end, so that stop leaves no job behind for
+# the next start.
+cancel_jobs() {
+	alive slurmctld >/dev/null || return 0
+	local ids i
+	ids=$(SLURM_CONF=$conf timeout 5 squeue -h -o %A 2>/dev/null | sort -u | tr '\n' ' ')
+	[ -n "${ids// /}" ] || return 0
+	say "cancelling the jobs still queued or running: $ids"
+	# shellcheck disable=SC2086 # a list of job IDs
+	SLURM_CONF=$conf timeout 10 scancel $ids 2>/dev/null || true
+	for ((i = 0; i < 100; i++)); do
+		[ -z "$(SLURM_CONF=$conf timeout 5 squeue -h -o %A 2>/dev/null)" ] && return 0
+		sleep 0.2
+	done
+	say "some jobs had not ended 20 s after scancel; the next start clears them"
+}
+
 cmd_stop() {
 	need_root stop
 	if [ ! -d "$dir/run" ]; then
@@ -269,6 +296,7 @@ cmd_stop() {
 		return 0
 	fi
 	local any=0 d
+	cancel_jobs
 	for d in slurmd slurmctld munged; do
 		if alive "$d" >/dev/null; then any=1; fi
 		stop_daemon "$d"

@@ -91,6 +91,11 @@ func TestSlurm(t *testing.T) {
 					logSlurmLogs(t, filepath.Join(root, "logs"))
 				}
 			}()
+			if code < 0 {
+				q, _ := runProcess(t, env, dir, 30*time.Second, "squeue", "-o", "%i %T %r")
+				n, _ := runProcess(t, env, dir, 30*time.Second, "sinfo")
+				t.Logf("the cluster when submit.sh was killed:\n%s\n%s", q, n)
+			}
 			arrayID, mergeID := submittedIDs(t, out)
 			if (code == 0) != (want == 0) {
 				t.Errorf("submit.sh --wait exited %d; want %s", code, map[bool]string{true: "0", false: "non-zero: a job failed"}[want == 0])
@@ -241,6 +246,7 @@ func startSlurm(t *testing.T, repo string) []string {
 	if dir == "" {
 		dir = "/var/lib/canalstep-slurm" // the script's default
 	}
+	lockSlurm(t, dir)
 	env := append(os.Environ(), "SLURM_CONF="+filepath.Join(dir, "slurm.conf"),
 		// A race-enabled canalstep would sleep 1 s at every exit.
 		"GORACE="+strings.TrimSpace(os.Getenv("GORACE")+" atexit_sleep_ms=0"))
@@ -266,6 +272,39 @@ func startSlurm(t *testing.T, repo string) []string {
 	}
 	t.Logf("scripts/slurm-local.sh start:\n%s", out)
 	return env
+}
+
+// lockSlurm holds an exclusive lock on dir/test.lock until the test ends,
+// waiting up to 10 minutes for it: test runs in other processes on this
+// machine (other packages' go test, another checkout) must not stop the
+// cluster under this one's jobs, nor this one under theirs.
+func lockSlurm(t *testing.T, dir string) {
+	t.Helper()
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	f, err := os.OpenFile(filepath.Join(dir, "test.lock"), os.O_CREATE|os.O_RDWR, 0o644)
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() { f.Close() }) // closing releases the lock; registered first, so it runs after the stop
+	deadline := time.Now().Add(10 * time.Minute)
+	for waited := false; ; waited = true {
+		err := syscall.Flock(int(f.Fd()), syscall.LOCK_EX|syscall.LOCK_NB)
+		if err == nil {
+			return
+		}
+		if err != syscall.EWOULDBLOCK {
+			t.Fatalf("lock %s: %v", f.Name(), err)
+		}
+		if time.Now().After(deadline) {
+			t.Fatalf("another test has held %s for 10 minutes: is a TestSlurm hanging?", f.Name())
+		}
+		if !waited {
+			t.Logf("waiting for another test run that uses the local cluster (%s)", f.Name())
+		}
+		time.Sleep(500 * time.Millisecond)
+	}
 }
 
 // runProcess runs name with args in dir with env, stdout and stderr
