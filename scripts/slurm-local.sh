@@ -59,14 +59,16 @@ need_root() {
 }
 
 # alive NAME prints the PID recorded in run/NAME.pid when that process runs
-# the executable /usr/sbin/NAME (so a reused PID is never taken for ours);
-# it fails otherwise. Without root, where /proc/PID/exe is not readable,
-# the process name stands in for the executable.
+# the executable /usr/sbin/NAME (so a reused PID is never taken for ours)
+# and is not a zombie; it fails otherwise. Without root, where /proc/PID/exe
+# is not readable, the process name stands in for the executable.
 alive() {
 	local pf="$dir/run/$1.pid" pid exe
 	[ -s "$pf" ] || return 1
 	pid=$(tr -dc '0-9' <"$pf")
 	[ -n "$pid" ] || return 1
+	# A killed daemon stays a zombie until it is reaped: not alive.
+	case "$(awk '{print $3}' "/proc/$pid/stat" 2>/dev/null)" in '' | Z | X) return 1 ;; esac
 	exe=$(readlink "/proc/$pid/exe" 2>/dev/null) || exe=$(cat "/proc/$pid/comm" 2>/dev/null) || return 1
 	case "$exe" in
 	"$1" | */"$1" | */"$1"-wlm | */"$1"" (deleted)" | */"$1"-wlm" (deleted)") echo "$pid" ;;
