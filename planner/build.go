@@ -173,7 +173,8 @@ func prepare(p Problem) (*prepared, error) {
 	if err := q.pointControls(); err != nil {
 		return nil, err
 	}
-	// Start invert.
+	// Start invert. startWhy names what set it.
+	startWhy := KindStartInvert
 	if d.StartInvert != nil {
 		q.z0 = *d.StartInvert
 	} else {
@@ -186,9 +187,14 @@ func prepare(p Problem) (*prepared, error) {
 		// the start, without drops, must hold every one of them.
 		flat, yf := q.grades[len(q.grades)-1], q.depth[len(q.depth)-1]
 		low := q.z0
+		if !math.IsNaN(q.margin[0]) {
+			startWhy = KindCommand
+		}
 		for i := range q.c {
-			if wl, _, ok := q.lowestWater(i); ok {
-				low = math.Max(low, wl-yf+flat*(q.c[i]-q.c[0]))
+			if wl, kind, ok := q.lowestWater(i); ok {
+				if need := wl - yf + flat*(q.c[i]-q.c[0]); need > low {
+					low, startWhy = need, kind
+				}
 			}
 		}
 		q.raised, q.z0 = low-q.z0, low
@@ -198,10 +204,21 @@ func prepare(p Problem) (*prepared, error) {
 			ErrInput, q.z0, math.Abs(q.z0-q.g[0]), q.g[0], d.MaxCutDepth, d.MaxFillHeight)
 	}
 	if q.z0-q.g[0] > d.MaxFillHeight+1e-9 {
-		return nil, &InfeasibleError{Conflicts: []Conflict{{Kinds: []Kind{KindStartInvert, KindMaxFill}, Cause: CauseContradict, From: q.c[0], To: q.c[0], Shortage: q.z0 - q.g[0] - d.MaxFillHeight,
+		// The default start invert stands this high for a lowest water
+		// level: that requirement, not the start, is what to relax.
+		flags := []string{"--max-fill"}
+		switch startWhy {
+		case KindCommand:
+			flags = append(flags, "--command-margin", "--command")
+		case KindMinWaterLevel:
+			flags = append(flags, "--min-water-level")
+		case KindOfftake:
+			flags = append(flags, "--alignment (the offtake's command_level or margin)")
+		}
+		return nil, &InfeasibleError{Conflicts: []Conflict{{Kinds: []Kind{startWhy, KindMaxFill}, Cause: CauseContradict, From: q.c[0], To: q.c[0], Shortage: q.z0 - q.g[0] - d.MaxFillHeight,
 			Limit: d.MaxFillHeight, Value: q.z0 - q.g[0],
 			Hint:  fmt.Sprintf("the start invert %.3f m is %.3f m above the ground, more than the maximum fill height %.3f m; lower the start invert or allow more fill", q.z0, q.z0-q.g[0], d.MaxFillHeight),
-			Flags: []string{"--start-invert", "--max-fill"}}}}
+			Flags: flags}}}
 	}
 	if q.g[0]-q.z0 > d.MaxCutDepth+1e-9 {
 		return nil, &InfeasibleError{Conflicts: []Conflict{{Kinds: []Kind{KindStartInvert, KindMaxCut}, Cause: CauseContradict, From: q.c[0], To: q.c[0], Shortage: q.g[0] - q.z0 - d.MaxCutDepth,

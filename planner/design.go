@@ -104,25 +104,26 @@ type Design struct {
 
 // Control is an elevation required at a chainage.
 type Control struct {
-	Chainage float64 // m; must match a station within Design.ControlTolerance
-	Level    float64 // m
+	Chainage float64 `json:"chainage"` // m; must match a station within Design.ControlTolerance
+	Level    float64 `json:"level"`    // m
 }
 
 // CommandRange asks for the design water surface to stand at least Margin
 // (m) above the centre-line ground from chainage From to To (m), both
 // included. Use math.Inf(-1) and math.Inf(1) for the whole alignment.
 type CommandRange struct {
-	From, To float64 // chainage, m
-	Margin   float64 // m, ≥ 0
+	From   float64 `json:"from"`   // chainage, m
+	To     float64 `json:"to"`     // chainage, m
+	Margin float64 `json:"margin"` // m, ≥ 0
 }
 
 // Offtake is a turnout the canal must command: the design water surface at
 // its station must reach Level (m).
 type Offtake struct {
-	Name     string
-	Chainage float64 // m, snapped to a station
-	Level    float64 // command level, m
-	Offset   float64 // distance from the centre line to the offtake point, m (information)
+	Name     string  `json:"name"`
+	Chainage float64 `json:"chainage"` // m, snapped to a station
+	Level    float64 `json:"level"`    // command level, m
+	Offset   float64 `json:"offset"`   // distance from the centre line to the offtake point, m (information)
 }
 
 // Design defaults (common practice, no source; set your project's values).

@@ -108,8 +108,16 @@ type TooBigError struct {
 }
 
 func (e *TooBigError) Error() string {
-	return fmt.Sprintf("planner: the optimiser would need %.1f GB for %d states, more than the %.1f GB allowed; use a coarser --step, tighter --max-cut/--max-fill, split the alignment, or raise --max-memory",
-		float64(e.Bytes)/1e9, e.States, float64(e.Limit)/1e9)
+	return fmt.Sprintf("planner: the optimiser would need %s for %d states, more than the %s allowed; use a coarser --step, tighter --max-cut/--max-fill, split the alignment, or raise --max-memory",
+		bytesText(e.Bytes), e.States, bytesText(e.Limit))
+}
+
+// bytesText prints a memory size in MB below a gigabyte, else in GB.
+func bytesText(b int64) string {
+	if b < 1e9 {
+		return fmt.Sprintf("%.1f MB", float64(b)/1e6)
+	}
+	return fmt.Sprintf("%.1f GB", float64(b)/1e9)
 }
 
 // Unwrap makes errors.Is(err, ErrInput) true.

@@ -622,6 +622,11 @@ func Compare(p Problem, alternatives [][]float64, workers int) []Alternative {
 		go func() {
 			defer wg.Done()
 			defer func() { <-sem }()
+			defer func() { // a bug in one alternative must not bring the others down
+				if v := recover(); v != nil {
+					out[i] = Alternative{DropHeights: hs, Err: fmt.Errorf("planner: internal error planning drop heights %v: %v", hs, v)}
+				}
+			}()
 			pp := p
 			pp.Design.DropHeights = append([]float64(nil), hs...)
 			r, err := Optimize(pp)

@@ -27,6 +27,11 @@ func WriteGround(st Stager, p *alignment.Profile, u Units) error {
 	// The plot and the CSV are independent: write them side by side.
 	plotErr := make(chan error, 1)
 	go func() {
+		defer func() {
+			if v := recover(); v != nil {
+				plotErr <- fmt.Errorf("report: internal error drawing the ground profile: %v", v)
+			}
+		}()
 		path, err := st.Path("ground.png")
 		if err == nil {
 			err = WriteGroundProfile(path, GroundProfile{Name: p.Name, Chainage: p.Chainages(), Ground: p.Grounds(), Units: u})
