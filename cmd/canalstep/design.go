@@ -305,7 +305,14 @@ func (f *designFlags) design(cmd string) (planner.Design, error) {
 		return d, usagef("--min-velocity %s must be below --max-velocity %s", f.sys.Format(units.Velocity, d.MinVelocity, 3), f.sys.Format(units.Velocity, d.MaxVelocity, 3))
 	}
 	var err error
-	if d.DropHeights, err = f.parseList("drop-heights", f.dropHeights, units.Length, "drop_height", "0.5,1.0,1.5"); err != nil {
+	// A list left at its default keeps its SI values, as every default
+	// does: 0.5, 1.0 and 1.5 m, not ft, with --units us.
+	heightSys := f.sys
+	if !f.given["drop-heights"] {
+		si := units.SI
+		heightSys = &si
+	}
+	if d.DropHeights, err = (&designFlags{sys: heightSys}).parseList("drop-heights", f.dropHeights, units.Length, "drop_height", "0.5,1.0,1.5"); err != nil {
 		return d, err
 	}
 	if f.grades != "" {
@@ -330,6 +337,11 @@ func (f *designFlags) design(cmd string) (planner.Design, error) {
 		d.Command = []planner.CommandRange{{From: math.Inf(-1), To: math.Inf(1), Margin: f.commandMargin}}
 	}
 	d.MaxCutDepth, d.MaxFillHeight, d.MinReach, d.Step = f.maxCut, f.maxFill, f.minReach, f.step
+	if !f.given["step"] && *f.sys == units.US && f.given["drop-heights"] {
+		// Drop heights given in feet are whole steps of 0.01 ft, not of
+		// 1 cm: the grid follows the unit the heights were given in.
+		d.Step = units.US.ToSI(units.Length, 0.01)
+	}
 	switch f.volume {
 	case "average-end-area", "aea":
 		d.Volume = earthwork.AverageEndArea
