@@ -11,13 +11,15 @@
 # Cases (each a function bench_<case>; add one and list it in bench_cases):
 #   profile  DEM sampling along a 40 km alignment at 1 m (40,049 points):
 #            canalstep profile, package terrain alone, gdallocationinfo on
-#            the same points, a Python rasterio tile reader and an empty
-#            program linked with libgdal (the load floor)
+#            the same points, a Python rasterio tile reader, an empty
+#            program linked with libgdal (the load floor) and the decoding
+#            of the blocks the points touch (the tile-decode floor,
+#            scripts/benchsample.go -decode)
 #   plan     the optimiser: Go benchmarks at 10 and 100 km alternated; the single-grade
 #            MIP at 400 stations against CBC (same optimum checked); the
 #            demo scheme's plan against the load floor
 #   batch    canalstep batch with 1 and 2 workers: jobs/s, speed-up, peak
-#            RSS (skipped while canalstep has no batch command)
+#            RSS, and the same output files from both
 #
 # Ratios are pairwise: every command of a comparison is timed in ONE
 # hyperfine call whose parameter list alternates them (A, B, A, B, …:
@@ -142,28 +144,40 @@ elif cmd == "net":     # net TDIR GID CASE COMP A B FLOOR GOALS NOTE: (A-F)/(B-F
     fl = allmed(per[f])
     row(case, comp, f"hyperfine, {len(rs)} rounds alternated", st.median(rs), min(rs), max(rs),
         allmed(per[a]) - fl, allmed(per[b]) - fl, None, None, goals, note)
-elif cmd == "logged":  # logged TDIR GID CASE COMP A B GOALS NOTE
-    # A and B are each a command name of group GID or "@FILE": lines
+elif cmd in ("logged", "netlog"):
+    # logged TDIR GID CASE COMP A B GOALS NOTE: A/B per round
+    # netlog TDIR GID CASE COMP A F B GOALS NOTE: (A - F)/B per round
+    # A, F and B are each a command name of group GID or "@FILE": lines
     # "ROUND SECONDS" that the command logged as it ran (its own timing of
     # its work inside the process), matched to the group's rounds.
-    tdir, gid, case, comp, a, b, goals, note = args
+    if cmd == "logged":
+        tdir, gid, case, comp, a, b, goals, note = args
+        f = None
+    else:
+        tdir, gid, case, comp, a, f, b, goals, note = args
     per, rss = load(tdir, gid)
     def side(x):
         if not x.startswith("@"):
             return per[x], rss.get(x)
         byr = {}
         for line in open(x[1:]):
-            f = line.split()
-            if len(f) == 2 and f[0].isdigit():
-                byr.setdefault(int(f[0]), []).append(float(f[1]))
+            fs = line.split()
+            if len(fs) == 2 and fs[0].isdigit():
+                byr.setdefault(int(fs[0]), []).append(float(fs[1]))
         rounds = len(next(iter(per.values())))
         if sorted(byr) != list(range(1, rounds + 1)):
             sys.exit(f"rows: {x[1:]} has rounds {sorted(byr)}, expected 1-{rounds}")
         return [byr[i] for i in range(1, rounds + 1)], None
     (pa, ma), (pb, mb) = side(a), side(b)
-    rs = [st.median(x) / st.median(y) for x, y in zip(pa, pb)]
+    if f is None:
+        rs = [st.median(x) / st.median(y) for x, y in zip(pa, pb)]
+        a_ms = allmed(pa)
+    else:
+        pf, _ = side(f)
+        rs = [(st.median(x) - st.median(z)) / st.median(y) for x, y, z in zip(pa, pb, pf)]
+        a_ms, ma = allmed(pa) - allmed(pf), None
     row(case, comp, f"hyperfine, {len(rs)} rounds alternated; logged figures timed in-process", st.median(rs), min(rs), max(rs),
-        allmed(pa), allmed(pb), ma, mb, goals, note)
+        a_ms, allmed(pb), ma, mb, goals, note)
 elif cmd == "median":  # median TDIR GID NAME: median wall time of NAME, s
     per, _ = load(args[0], args[1])
     print("%.6f" % (allmed(per[args[2]]) / 1e3))
@@ -300,6 +314,9 @@ bench_data() {
 #                   (nearest cell: less work than bilinear)
 #   python          rasterio + numpy, touched blocks only, bilinear
 #   gdal-load-only  an empty C program linked with libgdal (the floor)
+#   decode          benchsample -decode: the blocks the points touch, each decoded
+#                   once (the tile-decode floor; its in-process time is
+#                   logged per round, its process time is not used)
 bench_profile() {
 	local dem="$BENCH_OUT/dem.tif" route="$BENCH_OUT/route.geojson" pts="$BENCH_OUT/points.txt"
 	local prof_out="$BENCH_OUT/profile-out"
@@ -356,6 +373,21 @@ np.savetxt(sys.argv[2], [float(r[col]) for r in rows], fmt="%.4f")' \
 	group+=(gdallocinfo "gdallocationinfo -valonly -geoloc $dem < $pts > /dev/null")
 	group+=(python "$PY scripts/bench_rasterio.py $dem $pts")
 	if have gdal-load-only; then group+=(gdal-load-only "$B/gdal-load-only"); fi
+	# The tile-decode floor: the blocks these points touch, each decoded once
+	# with GDALReadBlock (median of 5 passes inside the process), logged per
+	# round for the row "net of the load floor vs the decode floor".
+	local decode_log="$T/profile-decode.txt"
+	: >"$decode_log"
+	local decode_blocks="?"
+	if have benchsample; then
+		if "$B/benchsample" -decode 5 "$dem" "$pts" >"$T/profile-decode.msg" 2>&1; then
+			sed -n 's/^benchsample: /  decode floor: /p' "$T/profile-decode.msg"
+			decode_blocks=$(awk '$4 == "touch" {print $5}' "$T/profile-decode.msg")
+		else
+			fail_row profile "tile-decode floor" "benchsample -decode failed (log $T/profile-decode.msg)"
+		fi
+		group+=(decode "$B/benchsample -decode 5 $dem $pts | awk '/^decode_s/ {print \"{round}\", \$2}' >> $decode_log")
+	fi
 	if ! time_group profile "${group[@]}"; then
 		fail_row profile "timings" "a command failed under hyperfine (log $T/profile.log)"
 		return 1
@@ -368,6 +400,11 @@ np.savetxt(sys.argv[2], [float(r[col]) for r in rows], fmt="%.4f")' \
 			pair_row profile profile canalstep gdal-load-only "canalstep profile vs libgdal load floor" ""
 			rows net "$T" profile profile "canalstep vs gdallocationinfo, net of load floor" canalstep gdallocinfo gdal-load-only "" \
 				"(A - floor) / (B - floor) per round; A ms, B ms are net" >>"$TABLE"
+			if have benchsample; then
+				rows netlog "$T" profile profile "canalstep net of load floor vs tile-decode floor" canalstep gdal-load-only "@$decode_log" "A/B<=2" \
+					"(A - load floor) / B per round; B: the $decode_blocks blocks the points touch, decoded once each (benchsample -decode: GDALReadBlock, median of 5 passes)" >>"$TABLE" ||
+					fail_row profile "tile-decode floor" "no decode times logged (log $T/profile.log)"
+			fi
 		fi
 	fi
 	if have benchsample; then
@@ -495,9 +532,8 @@ bench_plan() {
 #   canalstep batch --workers N --out DIR JOB.toml
 bench_batch() {
 	if ! have canalstep || ! "$B/canalstep" batch --help >/dev/null 2>&1; then
-		echo "skipped: canalstep has no batch command yet"
-		add_row batch "workers 1 vs 2" "skipped: canalstep has no batch command yet"
-		return 77
+		fail_row batch "workers 1 vs 2" "bin/canalstep did not build or has no batch command"
+		return 1
 	fi
 	local d="$BENCH_OUT/batch" job=${BENCH_BATCH_JOB:-}
 	mkdir -p "$d"
@@ -514,8 +550,8 @@ bench_batch() {
 			min_velocity = 0.45
 			spacing = 10
 		EOF
-		# Keys as plan's flags with _ for -, as design files have them; if
-		# canalstep batch's job format differs, give BENCH_BATCH_JOB.
+		# The job file format of canalstep batch (see testdata/batch/job.toml);
+		# the design file's keys are plan's flags with _ for -.
 		cat >"$job" <<-EOF
 			dem = "$BENCH_OUT/dem.tif"
 			alignment = "$BENCH_OUT/batch.geojson"
@@ -535,9 +571,12 @@ bench_batch() {
 	done
 	local jobs failed same=identical
 	jobs=$(($(wc -l <"$d/out-w1/index.csv") - 1))
-	failed=$(grep -ci 'fail' "$d/out-w1/index.csv" || true)
+	failed=$("$PY" -c 'import csv, sys; print(sum(r["status"] == "failed" for r in csv.DictReader(open(sys.argv[1]))))' "$d/out-w1/index.csv")
 	diff -rq -x run.log "$d/out-w1" "$d/out-w2" >"$T/batch-diff.txt" 2>&1 || same="DIFFERENT (see $T/batch-diff.txt)"
-	echo "  $jobs jobs ($failed with a failure status); outputs of 1 and 2 workers: $same"
+	echo "  $jobs jobs ($failed failed); outputs of 1 and 2 workers: $same"
+	if [ "$failed" != 0 ]; then
+		fail_row batch "jobs" "$failed of $jobs jobs failed (reasons in $d/out-w1/index.csv): the timings are not of $jobs planned jobs"
+	fi
 	[ "$same" = identical ] || fail_row batch "workers 1 vs 2 outputs" "differ (see $T/batch-diff.txt)"
 	GROUP_ROUNDS=${BENCH_BATCH_ROUNDS:-3} GROUP_RUNS=1 GROUP_WARMUP=0 GROUP_IGNORE=1 \
 		GROUP_PREPARE="rm -rf $d/out-w1 $d/out-w2" \
@@ -569,6 +608,7 @@ bench_main() {
 	done
 	mkdir -p "$T"
 	: >"$TABLE"
+	load0=$(cut -d' ' -f1-3 /proc/loadavg)
 	local results=()
 	bench_build || status=1
 	if [ "$need_data" = 1 ] && ! bench_data; then
@@ -596,6 +636,7 @@ bench_main() {
 
 	echo
 	echo "=== canalstep bench: $(date -u +%Y-%m-%d) on $(nproc) cores, $(awk '/^MemTotal/ {printf "%.0f GB", $2 / 1048576}' /proc/meminfo); BENCH_OUT=$BENCH_OUT"
+	echo "    load average (1, 5, 15 min) at the start: $load0; at the end: $(cut -d' ' -f1-3 /proc/loadavg) (other work on the machine lowers speed-ups)"
 	echo "    A/B: median over rounds of A's median over B's median in that round; rounds: lowest-highest round; ms: median wall time; MB: peak RSS"
 	echo
 	rows table "$TABLE"
