@@ -70,9 +70,9 @@ func TestRFC7946(t *testing.T) {
 		t.Error(`the collection has a "crs" member`)
 	}
 	var fc struct {
-		Type     string `json:"type"`
-		Caution  string `json:"caution"`
-		Layers   []struct {
+		Type    string `json:"type"`
+		Caution string `json:"caution"`
+		Layers  []struct {
 			Name     string `json:"name"`
 			Geometry string `json:"geometry"`
 			Fields   []struct {
